@@ -1,0 +1,37 @@
+"""``valband demo``: run the bundled, invented demo scenario and write everything to one folder."""
+
+from __future__ import annotations
+
+import sys
+
+
+def add_arguments(p) -> None:
+    """Options of ``valband demo``."""
+    p.add_argument("--out", default="valband-demo", metavar="DIR",
+                   help="folder for all results (default valband-demo)")
+    p.add_argument("--params", default="harrison-universal", metavar="SET",
+                   help="parameter set name or .toml path (default harrison-universal)")
+    p.add_argument("--mesh", default="20", help="k-mesh per candidate (default 20)")
+    p.add_argument("--format", default="png", choices=["png", "svg"], help="plot format")
+    p.add_argument("--json", action="store_true", help="print the summary as JSON")
+    p.add_argument("--quiet", action="store_true", help="print nothing but errors")
+
+
+def run(args) -> int:
+    """Run the scenario, print the ranking."""
+    from valband.cli.common import print_json
+    from valband.demo import DEMO_NOTE, run_demo
+
+    quiet = args.quiet or args.json
+    log = (lambda *a, **k: None) if quiet else (lambda m: print(m, file=sys.stderr))
+    log(f"valband demo -> {args.out}/\n{DEMO_NOTE}")
+    summary = run_demo(args.out, args.params, args.mesh, args.format, progress=not quiet, log=log)
+    if args.json:
+        print_json(summary)
+    elif not args.quiet:
+        print("rank  candidate  d-band centre (eV)  width (eV)  filling")
+        for i, r in enumerate(summary["screening"], 1):
+            print(f"{i:4d}  {r['name']:9s}  {r['d_band_centre_eV']:18.3f}  "
+                  f"{r['d_band_width_eV']:10.3f}  {r['d_filling']:7.3f}")
+        print(f"results in {args.out}/ (summary.json, screening.csv, one folder per candidate)")
+    return 0

@@ -1,0 +1,105 @@
+"""Options shared by several subcommands, and the few steps they share (load, model, DOS)."""
+
+from __future__ import annotations
+
+import argparse
+import sys
+
+__all__ = [
+    "add_model_arguments", "add_dos_arguments", "add_output_arguments",
+    "load_model", "dos_settings", "print_json", "window_of",
+]
+
+DEFAULT_PARAMS = "harrison-universal"
+
+
+def add_model_arguments(p: argparse.ArgumentParser) -> None:
+    """STRUCTURE and --params."""
+    p.add_argument("structure", help="structure file (any format ASE reads: CIF, POSCAR, extxyz, …) "
+                   "or a build spec in quotes, e.g. 'Cu fcc' or 'Pd fcc 3.89' (lattice constant in Å)")
+    p.add_argument("--params", default=DEFAULT_PARAMS, metavar="SET",
+                   help=f"parameter set: a shipped name or a .toml path (default {DEFAULT_PARAMS})")
+
+
+def add_dos_arguments(p: argparse.ArgumentParser) -> None:
+    """k-mesh, DOS method and grid options."""
+    g = p.add_argument_group("k-mesh and DOS")
+    g.add_argument("--mesh", default="24", help="k-points per reciprocal lattice vector: N or N1xN2xN3 "
+                   "(default 24)")
+    g.add_argument("--gamma", action="store_true",
+                   help="Γ-centred mesh instead of Monkhorst–Pack (which shifts even meshes by half a step)")
+    g.add_argument("--method", default="gaussian", choices=["gaussian", "lorentzian", "tetrahedron"],
+                   help="DOS method (default gaussian)")
+    g.add_argument("--width", type=float, default=0.1,
+                   help="smearing width in eV: Gaussian σ or Lorentzian HWHM (default 0.1)")
+    g.add_argument("--step", type=float, default=0.01, help="energy grid step in eV (default 0.01)")
+    g.add_argument("--emin", type=float, default=None, help="grid start, eV relative to E_F")
+    g.add_argument("--emax", type=float, default=None, help="grid end, eV relative to E_F")
+    g.add_argument("--resolve", default="l", choices=["l", "m"],
+                   help="partial DOS per shell (l, default) or per orbital (m; uses the full mesh)")
+    g.add_argument("--no-symmetry", action="store_true", help="do not reduce the mesh by symmetry")
+    g.add_argument("--electrons", type=float, default=None,
+                   help="valence electrons per cell (default: from the parameter set)")
+    g.add_argument("--window", type=float, nargs=2, metavar=("EMIN", "EMAX"), default=None,
+                   help="energy window for the descriptors, eV relative to E_F (default: whole grid)")
+    g.add_argument("--shell", default="d", choices=["s", "p", "d"],
+                   help="shell the descriptors describe (default d)")
+
+
+def add_output_arguments(p: argparse.ArgumentParser, default_out: str | None) -> None:
+    """--out, --format, --json, --quiet."""
+    p.add_argument("--out", default=default_out, metavar="DIR",
+                   help="folder for the data files, plots and summary.json"
+                   + (f" (default {default_out})" if default_out else ""))
+    p.add_argument("--format", default="png", choices=["png", "svg"], help="plot format (default png)")
+    p.add_argument("--json", action="store_true", help="print the summary as JSON on stdout")
+    p.add_argument("--quiet", action="store_true", help="no progress bar or messages")
+
+
+def load_model(args):
+    """Structure + parameter set → model (the expensive imports happen here)."""
+    from valband.params import load_parameter_set
+    from valband.structure import load_structure
+    from valband.tb import build_model
+
+    structure = load_structure(args.structure)
+    params = load_parameter_set(args.params)
+    return build_model(structure, params)
+
+
+def dos_settings(args):
+    """DOSSettings from the parsed options."""
+    from valband.workflows import DOSSettings
+
+    return DOSSettings(
+        mesh=args.mesh, mesh_kind="gamma" if args.gamma else "monkhorst-pack", method=args.method,
+        width=args.width, step=args.step, emin=args.emin, emax=args.emax, resolve=args.resolve,
+        symmetry=not args.no_symmetry, n_electrons=args.electrons,
+    )
+
+
+def window_of(args):
+    """The descriptor window as a tuple, or None."""
+    return tuple(args.window) if args.window else None
+
+
+def print_json(summary: dict) -> None:
+    """Summary JSON on stdout."""
+    from valband.output import to_json
+
+    sys.stdout.write(to_json(summary) + "\n")
+
+
+def print_descriptor_table(table, out=sys.stdout) -> None:
+    """A plain-text table of descriptors per element and site."""
+    rows = [("", "centre", "width", "filling", "skew", "kurt", "upper edge")]
+    for name, d in list(table.elements.items()) + [
+        (f"  site {i} {table.site_labels.get(i, '')}".rstrip(), d) for i, d in table.sites.items()
+    ]:
+        rows.append((name, f"{d.centre:.3f}", f"{d.width:.3f}", f"{d.filling:.3f}",
+                     f"{d.skewness:.3f}", f"{d.kurtosis:.3f}", f"{d.upper_edge:.3f}"))
+    widths = [max(len(r[i]) for r in rows) for i in range(len(rows[0]))]
+    print(f"{table.shell}-band descriptors (eV relative to E_F; window "
+          f"{table.window[0]:.2f} to {table.window[1]:.2f} eV)", file=out)
+    for r in rows:
+        print("  ".join(c.rjust(w) if i else c.ljust(w) for i, (c, w) in enumerate(zip(r, widths, strict=True))), file=out)

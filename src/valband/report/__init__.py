@@ -1,0 +1,1 @@
+"""Figures (and later the HTML report). Plot functions take a matplotlib Axes; they compute no physics."""

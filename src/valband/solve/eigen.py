@@ -1,0 +1,107 @@
+"""Batched dense eigensolver streamed over chunks of k-points.
+
+For each chunk the Hamiltonian (and overlap) are assembled, diagonalised with LAPACK through
+``numpy.linalg.eigh`` (batched), and the eigenvectors are reduced at once to projection weights on
+the requested channels, so that the (n_k, n_orb, n_orb) eigenvector array never exists for the
+whole mesh: memory is bounded by the chunk size plus O(n_k · n_bands · n_channels).
+
+Non-orthogonal sets solve H c = ε S c through the Cholesky factor S = L Lᴴ:
+(L⁻¹ H L⁻ᴴ) y = ε y, c = L⁻ᴴ y. Projections are Mulliken weights w_iν = Re(c*_iν (S c)_iν)
+(Mulliken, J. Chem. Phys. 23, 1833 (1955)), which sum to one per state and may be slightly negative.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+from numpy.typing import NDArray
+
+from valband.errors import CalculationError
+from valband.progress import Progress
+
+__all__ = ["diagonalise", "DEFAULT_CHUNK_BYTES"]
+
+#: Memory budget (bytes) of one chunk's complex matrices (H, S, eigenvectors).
+DEFAULT_CHUNK_BYTES = 32 * 2**20
+
+
+def _chunk_size(n_orb: int, budget: int) -> int:
+    per_k = 4 * 16 * n_orb * n_orb  # H, S, vectors, temporaries, complex128
+    return max(1, min(budget // per_k, 4096))
+
+
+def diagonalise(
+    model,
+    kpoints: NDArray[np.float64],
+    channels: NDArray[np.float64] | None = None,
+    chunk_bytes: int = DEFAULT_CHUNK_BYTES,
+    progress: bool = False,
+) -> tuple[NDArray[np.float64], NDArray[np.float64] | None]:
+    """Eigenvalues and channel projections at a set of k-points.
+
+    Parameters
+    ----------
+    model
+        A :class:`valband.tb.TBModel` (anything with ``n_orbitals``, ``orthogonal`` and
+        ``hamiltonian_and_overlap(kpts)``).
+    kpoints : (n_k, 3) fractional reciprocal coordinates.
+    channels : (n_orb, n_ch) or None
+        Orbital-to-channel matrix (e.g. 0/1 membership of each orbital in a site × shell
+        channel). ``None`` skips projections.
+    chunk_bytes : memory budget of one chunk.
+    progress : draw a progress bar on a terminal.
+
+    Returns
+    -------
+    eigenvalues : (n_k, n_orb) float64, eV on the model's absolute scale, ascending per k.
+    weights : (n_k, n_orb, n_ch) float64 or None
+        Projection of each state on each channel (Mulliken for non-orthogonal sets).
+    """
+    kpoints = np.ascontiguousarray(kpoints, dtype=np.float64)
+    n_k = len(kpoints)
+    n_orb = model.n_orbitals
+    step = _chunk_size(n_orb, chunk_bytes)
+    eig = np.empty((n_k, n_orb), dtype=np.float64)
+    wts = None
+    if channels is not None:
+        channels = np.ascontiguousarray(channels, dtype=np.float64)
+        wts = np.empty((n_k, n_orb, channels.shape[1]), dtype=np.float64)
+    bar = Progress(n_k, "diagonalising", enabled=progress)
+    try:
+        for start in range(0, n_k, step):
+            stop = min(start + step, n_k)
+            h, s = model.hamiltonian_and_overlap(kpoints[start:stop])
+            e, w = _solve_chunk(h, s, channels)
+            eig[start:stop] = e
+            if wts is not None:
+                wts[start:stop] = w
+            bar.update(stop - start)
+    finally:
+        bar.close()
+    return eig, wts
+
+
+def _solve_chunk(h, s, channels):
+    """Diagonalise one chunk; return eigenvalues and channel weights (or None)."""
+    if s is None:
+        want_vectors = channels is not None
+        if not want_vectors:
+            return np.linalg.eigvalsh(h), None
+        e, c = np.linalg.eigh(h)
+        w = (c.real**2 + c.imag**2)  # (k, orbital, band)
+    else:
+        try:
+            chol = np.linalg.cholesky(s)
+        except np.linalg.LinAlgError:
+            raise CalculationError(
+                "the overlap matrix S(k) is not positive definite at some k-point: the overlap "
+                "integrals of the parameter set are too large for this structure (atoms too close?)"
+            ) from None
+        linv = np.linalg.inv(chol)
+        hp = linv @ h @ np.conj(np.swapaxes(linv, -1, -2))
+        if channels is None:
+            return np.linalg.eigvalsh(hp), None
+        e, y = np.linalg.eigh(hp)
+        c = np.conj(np.swapaxes(linv, -1, -2)) @ y
+        w = (np.conj(c) * (s @ c)).real
+    # (k, band, orbital) @ (orbital, channel) -> (k, band, channel)
+    return e, np.swapaxes(w, 1, 2) @ channels
