@@ -90,8 +90,9 @@ def print_json(summary: dict) -> None:
     sys.stdout.write(to_json(summary) + "\n")
 
 
-def print_descriptor_table(table, out=sys.stdout) -> None:
-    """A plain-text table of descriptors per element and site."""
+def print_descriptor_table(table, out=None) -> None:
+    """A plain-text table of descriptors per element and site (on stdout by default)."""
+    out = out or sys.stdout
     rows = [("", "centre", "width", "filling", "skew", "kurt", "upper edge")]
     for name, d in list(table.elements.items()) + [
         (f"  site {i} {table.site_labels.get(i, '')}".rstrip(), d) for i, d in table.sites.items()
