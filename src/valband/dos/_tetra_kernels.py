@@ -18,7 +18,10 @@ its region), so no special cases are needed.
 
 The numba kernels loop over mesh cubes, look up the eight corner rows through ``ir_map`` on
 the fly (periodic wrap-around) and never hold full-mesh arrays; they run in parallel over
-the slowest mesh index i2 with one private accumulator row per i2. The numpy references
+the slowest mesh index i2 with one private accumulator row per i2. Inside each region the
+delta weights are cubic polynomials in E; the DOS kernel builds their coefficients once per
+tetrahedron and region and evaluates them by Horner's rule (no division per energy point).
+The numpy references
 build every tetrahedron explicitly (memory ∝ mesh size) and compute the delta-function
 weights by a separate geometric route (area-weighted barycentric centroid of the
 constant-energy cross-section), so the two implementations check each other.
@@ -37,6 +40,7 @@ __all__ = [
     "tetra_dos_reference",
     "tetra_integrate_numba",
     "tetra_integrate_reference",
+    "tetra_count_reference",
     "full_index",
 ]
 
@@ -252,7 +256,9 @@ def _first_above(a, e_first, de, ne):  # pragma: no cover
 
 
 @numba.njit(cache=True, parallel=True)
-def _dos_kernel(m0, m1, m2, tets, ir_map, eig, proj, energies, with_ch, out_tot, out_ch):  # pragma: no cover
+def _dos_kernel(
+    m0, m1, m2, tets, ir_map, eig, proj, energies, with_ch, out_tot, out_ch
+):  # pragma: no cover
     ne = energies.size
     nb = eig.shape[1]
     nch = proj.shape[2]
@@ -308,40 +314,43 @@ def _dos_kernel(m0, m1, m2, tets, ir_map, eig, proj, energies, with_ch, out_tot,
                                     u = sign * (energies[j] - origin)
                                     out_tot[i2, j] += ((s3 * u + s2) * u + s1) * u + s0
                                 continue
+                            c00, c01, c02, c03 = coef[0, 0], coef[0, 1], coef[0, 2], coef[0, 3]
+                            c10, c11, c12, c13 = coef[1, 0], coef[1, 1], coef[1, 2], coef[1, 3]
+                            c20, c21, c22, c23 = coef[2, 0], coef[2, 1], coef[2, 2], coef[2, 3]
+                            c30, c31, c32, c33 = coef[3, 0], coef[3, 1], coef[3, 2], coef[3, 3]
                             for j in range(ja, jb):
                                 u = sign * (energies[j] - origin)
                                 jj = j - jlo
-                                tot = 0.0
-                                for r in range(4):
-                                    v = ((coef[r, 3] * u + coef[r, 2]) * u + coef[r, 1]) * u + coef[
-                                        r, 0
-                                    ]
-                                    dbuf[r, jj] = v
-                                    tot += v
-                                out_tot[i2, j] += tot
+                                v0 = ((c03 * u + c02) * u + c01) * u + c00
+                                v1 = ((c13 * u + c12) * u + c11) * u + c10
+                                v2 = ((c23 * u + c22) * u + c21) * u + c20
+                                v3 = ((c33 * u + c32) * u + c31) * u + c30
+                                dbuf[0, jj] = v0
+                                dbuf[1, jj] = v1
+                                dbuf[2, jj] = v2
+                                dbuf[3, jj] = v3
+                                out_tot[i2, j] += v0 + v1 + v2 + v3
                         if not with_ch:
                             continue
-                        r0 = perm[0]
-                        r1 = perm[1]
-                        r2 = perm[2]
-                        r3 = perm[3]
-                        for j in range(jlo, jhi):
-                            jj = j - jlo
-                            d0 = dbuf[0, jj]
-                            d1 = dbuf[1, jj]
-                            d2 = dbuf[2, jj]
-                            d3 = dbuf[3, jj]
-                            for c in range(nch):
-                                out_ch[i2, j, c] += (
-                                    d0 * proj[r0, b, c]
-                                    + d1 * proj[r1, b, c]
-                                    + d2 * proj[r2, b, c]
-                                    + d3 * proj[r3, b, c]
+                        for c in range(nch):
+                            p0 = proj[perm[0], b, c]
+                            p1 = proj[perm[1], b, c]
+                            p2 = proj[perm[2], b, c]
+                            p3 = proj[perm[3], b, c]
+                            for j in range(jlo, jhi):
+                                jj = j - jlo
+                                out_ch[i2, c, j] += (
+                                    dbuf[0, jj] * p0
+                                    + dbuf[1, jj] * p1
+                                    + dbuf[2, jj] * p2
+                                    + dbuf[3, jj] * p3
                                 )
 
 
 @numba.njit(cache=True, parallel=True)
-def _integrate_kernel(m0, m1, m2, tets, ir_map, eig, values, energy, bloechl, out):  # pragma: no cover
+def _integrate_kernel(
+    m0, m1, m2, tets, ir_map, eig, values, energy, bloechl, out
+):  # pragma: no cover
     nb = eig.shape[1]
     for i2 in numba.prange(m2):
         rows = np.empty(8, dtype=np.int64)
@@ -397,11 +406,11 @@ def tetra_dos_numba(mesh, tets, ir_map, eig, energies, proj):
     p = proj if with_ch else np.zeros((1, 1, 0))
     nch = p.shape[2]
     out_tot = np.zeros((m2, ne))
-    out_ch = np.zeros((m2 if with_ch else 1, ne, nch))
+    out_ch = np.zeros((m2 if with_ch else 1, nch, ne))
     _dos_kernel(m0, m1, m2, _tet_codes(tets), ir_map, eig, p, energies, with_ch, out_tot, out_ch)
     norm = 1.0 / (6.0 * m0 * m1 * m2)
     total = out_tot.sum(axis=0) * norm
-    channels = np.ascontiguousarray(out_ch.sum(axis=0).T) * norm if with_ch else None
+    channels = out_ch.sum(axis=0) * norm if with_ch else None
     return total, channels
 
 
@@ -535,6 +544,12 @@ def _ref_count_t(a, en):
     out[rb] = nb_[rb]
     out[rc] = nc[rc]
     return out
+
+
+def tetra_count_reference(mesh, tets, ir_map, eig, energy):
+    """Closed-form linear count Σ_T N_T(E) / (6·nfull) (Blöchl et al. 1994, Appendix B)."""
+    a, _, _ = _sorted_tetra(mesh, tets, ir_map, np.asarray(eig, dtype=np.float64))
+    return float(_ref_count_t(a, energy).sum()) / (6.0 * int(np.prod(mesh)))
 
 
 def tetra_integrate_reference(mesh, tets, ir_map, eig, values, energy, bloechl):

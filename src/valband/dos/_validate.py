@@ -70,7 +70,9 @@ def check_uniform_grid(energies, name: str = "energies") -> tuple[NDArray[np.flo
         raise SettingsError(f"{name} contains NaN or infinite values")
     d = np.diff(e)
     if np.any(d <= 0.0):
-        raise SettingsError(f"{name} must be strictly ascending (accepted: a uniform ascending grid)")
+        raise SettingsError(
+            f"{name} must be strictly ascending (accepted: a uniform ascending grid)"
+        )
     step = (e[-1] - e[0]) / (e.size - 1)
     if np.max(np.abs(d - step)) > UNIFORM_RTOL * step:
         raise SettingsError(

@@ -4,10 +4,12 @@ Convention when the Fermi level is not unique
     N(E) = n can hold on a whole interval (a gap, or a region between tetrahedron corner
     energies where the linear DOS vanishes). The returned Fermi level is then the midpoint
     of that plateau, [E_lo, E_hi] with E_lo = inf{E: N(E) ≥ n − δ} and
-    E_hi = sup{E: N(E) ≤ n + δ}, δ = 1e-10·max(1, max_electrons) electrons. If the plateau
+    E_hi = sup{E: N(E) ≤ n + δ}, δ = 1e-12·max(1, max_electrons) electrons. If the plateau
     reaches an end of the bracket (n = 0 or n = max_electrons, say), its inner end — the
     band edge — is returned instead, so the result does not depend on the bracket.
     Where the root is unique (a metal, or any smeared count) E_lo = E_hi = the root.
+    Plateau ends are located only as sharply as δ allows: next to a 3D band edge
+    N − n ∝ (E − edge)³, so an end is placed ~(δ/c)^(1/3) (typically 1e-4 eV) inside the gap.
 """
 
 from __future__ import annotations
@@ -86,11 +88,13 @@ def find_fermi_level(
         )
     lo, hi = float(lower), float(upper)
     if not (math.isfinite(lo) and math.isfinite(hi)) or lo >= hi:
-        raise SettingsError(f"Fermi-level bracket must be finite with lower < upper, got ({lower}, {upper})")
+        raise SettingsError(
+            f"Fermi-level bracket must be finite with lower < upper, got ({lower}, {upper})"
+        )
     tol = float(tol)
     if not (tol > 0.0 and math.isfinite(tol)):
         raise SettingsError(f"tol must be a finite number > 0 eV, got {tol!r}")
-    delta = 1e-10 * max(1.0, nmax)
+    delta = 1e-12 * max(1.0, nmax)
     n_lo, n_hi = float(count(lo)), float(count(hi))
     if not (n_lo <= n + delta and n_hi >= n - delta):
         raise CalculationError(

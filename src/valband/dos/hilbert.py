@@ -71,7 +71,9 @@ def window_nodes(grid, step, window) -> tuple[NDArray[np.intp], tuple[float, flo
     return idx, (emin, emax)
 
 
-def hilbert_transform(energies, dos, window=None) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
+def hilbert_transform(
+    energies, dos, window=None
+) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
     """Hilbert transform of the DOS restricted to a window, at the window's grid nodes.
 
     Parameters

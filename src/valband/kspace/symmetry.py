@@ -6,6 +6,8 @@ here, once, and turn its failures into :class:`~valband.errors.SymmetryWarning` 
 
 from __future__ import annotations
 
+import functools
+
 import numpy as np
 import spglib
 from numpy.typing import NDArray
@@ -25,7 +27,9 @@ except (ImportError, AttributeError):  # pragma: no cover - older spglib
     pass
 
 
+@functools.lru_cache(maxsize=32)
 def _dataset(structure: Structure):
+    """spglib's symmetry dataset (cached per Structure object, which is immutable)."""
     try:
         return spglib.get_symmetry_dataset(structure.to_spglib(), symprec=SYMPREC)
     except Exception:  # spglib raises its own error types; treat as "no symmetry"
