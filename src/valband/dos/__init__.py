@@ -11,6 +11,7 @@ from valband.dos.hilbert import hilbert_transform, hilbert_upper_edge
 from valband.dos.smearing import SMEARING_KINDS, smearing_count, smearing_dos
 from valband.dos.tetrahedron import (
     cube_tetrahedra,
+    tetrahedron_classes,
     tetrahedron_count,
     tetrahedron_dos,
     tetrahedron_integrate,
@@ -21,6 +22,7 @@ __all__ = [
     "smearing_dos",
     "smearing_count",
     "cube_tetrahedra",
+    "tetrahedron_classes",
     "tetrahedron_dos",
     "tetrahedron_count",
     "tetrahedron_integrate",

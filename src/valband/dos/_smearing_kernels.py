@@ -35,6 +35,7 @@ def _smear_kernel(eps, w, proj, energies, width, kind, cutoff, out_tot, out_ch):
     e0 = energies[0]
     de = (energies[ne - 1] - e0) / (ne - 1)
     nblock = (ne + _BLOCK - 1) // _BLOCK
+    q = math.exp(-de * de / (width * width))
     for ib in numba.prange(nblock):
         j0 = ib * _BLOCK
         j1 = min(ne, j0 + _BLOCK)
@@ -56,15 +57,23 @@ def _smear_kernel(eps, w, proj, energies, width, kind, cutoff, out_tot, out_ch):
                 jhi = j1
             if jhi <= jlo:
                 continue
-            for j in range(jlo, jhi):
-                x = energies[j] - es
-                if kind == 0:
-                    u = x / width
-                    v = ws * _INV_SQRT_2PI / width * math.exp(-0.5 * u * u)
-                else:
+            if kind == 0:
+                # exp(−x²/2σ²) along the grid by recurrence: g_{j+1} = g_j·r_j,
+                # r_{j+1} = r_j·q with q = exp(−h²/σ²) — two exps per state and block.
+                x = energies[jlo] - es
+                g = ws * _INV_SQRT_2PI / width * math.exp(-0.5 * (x / width) ** 2)
+                r = math.exp(-(x * de + 0.5 * de * de) / (width * width))
+                for j in range(jlo, jhi):
+                    vals[j - jlo] = g
+                    out_tot[j] += g
+                    g *= r
+                    r *= q
+            else:
+                for j in range(jlo, jhi):
+                    x = energies[j] - es
                     v = ws * width / (math.pi * (x * x + width * width))
-                vals[j - jlo] = v
-                out_tot[j] += v
+                    vals[j - jlo] = v
+                    out_tot[j] += v
             for c in range(nch):
                 p = proj[s, c]
                 for j in range(jlo, jhi):

@@ -255,140 +255,214 @@ def _first_above(a, e_first, de, ne):  # pragma: no cover
     return min(max(j, 0), ne)
 
 
+@numba.njit(cache=True, inline="always")
+def _sort_rows4(r):  # pragma: no cover
+    """Sort four integers ascending in place (a 5-comparator network)."""
+    if r[0] > r[1]:
+        r[0], r[1] = r[1], r[0]
+    if r[2] > r[3]:
+        r[2], r[3] = r[3], r[2]
+    if r[0] > r[2]:
+        r[0], r[2] = r[2], r[0]
+    if r[1] > r[3]:
+        r[1], r[3] = r[3], r[1]
+    if r[1] > r[2]:
+        r[1], r[2] = r[2], r[1]
+
+
 @numba.njit(cache=True, parallel=True)
-def _dos_kernel(
-    m0, m1, m2, tets, ir_map, eig, proj, energies, with_ch, out_tot, out_ch
-):  # pragma: no cover
+def _tetra_keys(m0, m1, m2, tets, ir_map, nir, single, k1, k2):  # pragma: no cover
+    """Key(s) of the sorted irreducible corner rows of every tetrahedron of the mesh.
+
+    ``single``: one int64 key r0·n³ + r1·n² + r2·n + r3 in k1 (needs n⁴ < 2⁶³); otherwise
+    k1 = r0·n + r1 and k2 = r2·n + r3.
+    """
+    for i2 in numba.prange(m2):
+        rows = np.empty(8, dtype=np.int64)
+        r = np.empty(4, dtype=np.int64)
+        for i1 in range(m1):
+            for i0 in range(m0):
+                _cube_corners(i0, i1, i2, m0, m1, m2, ir_map, rows)
+                base = 6 * (i0 + m0 * (i1 + m1 * i2))
+                for t in range(6):
+                    for c in range(4):
+                        r[c] = rows[tets[t, c]]
+                    _sort_rows4(r)
+                    if single:
+                        k1[base + t] = ((r[0] * nir + r[1]) * nir + r[2]) * nir + r[3]
+                    else:
+                        k1[base + t] = r[0] * nir + r[1]
+                        k2[base + t] = r[2] * nir + r[3]
+
+
+def irreducible_tetrahedra(mesh, tets, ir_map, nir):
+    """Distinct tetrahedra of the mesh by their irreducible corners, with multiplicities.
+
+    Tetrahedra whose corners map to the same irreducible points carry identical energies
+    and projections, so each class is integrated once and weighted by its size
+    (Blöchl, Jepsen & Andersen, Phys. Rev. B 49, 16223 (1994), Sec. III).
+
+    Returns
+    -------
+    rows : int64 (n_classes, 4), sorted corner rows into the irreducible arrays
+    mult : float64 (n_classes,), number of mesh tetrahedra in each class
+    """
+    m0, m1, m2 = (int(x) for x in mesh)
+    n_tet = 6 * m0 * m1 * m2
+    nir = int(nir)
+    single = nir**4 < 2**62
+    k1 = np.empty(n_tet, dtype=np.int64)
+    k2 = np.empty(n_tet if not single else 0, dtype=np.int64)
+    _tetra_keys(m0, m1, m2, _tet_codes(tets), ir_map, nir, single, k1, k2)
+    if single:
+        keys, mult = np.unique(k1, return_counts=True)
+        del k1
+        rows = np.empty((keys.size, 4), dtype=np.int64)
+        for c in range(3, -1, -1):
+            rows[:, c] = keys % nir
+            keys //= nir
+    else:
+        order = np.lexsort((k2, k1))
+        a, b = k1[order], k2[order]
+        first = np.ones(n_tet, dtype=bool)
+        first[1:] = (a[1:] != a[:-1]) | (b[1:] != b[:-1])
+        starts = np.flatnonzero(first)
+        mult = np.diff(np.append(starts, n_tet))
+        a, b = a[starts], b[starts]
+        rows = np.stack([a // nir, a % nir, b // nir, b % nir], axis=1)
+    return np.ascontiguousarray(rows), mult.astype(np.float64)
+
+
+@numba.njit(cache=True, parallel=True)
+def _dos_kernel(rows, mult, eig, proj, energies, with_ch, out_tot, out_ch):  # pragma: no cover
+    """Accumulate the DOS of tetrahedron classes; slot s of the outputs is thread-private."""
     ne = energies.size
     nb = eig.shape[1]
     nch = proj.shape[2]
     e_first = energies[0]
     de = (energies[ne - 1] - e_first) / (ne - 1)
-    for i2 in numba.prange(m2):
-        rows = np.empty(8, dtype=np.int64)
+    nslot = out_tot.shape[0]
+    nt = rows.shape[0]
+    per = (nt + nslot - 1) // nslot
+    for slot in numba.prange(nslot):
         e = np.empty(4)
         perm = np.empty(4, dtype=np.int64)
         coef = np.empty((4, 4))
         dbuf = np.empty((4, ne))
         bounds = np.empty(4, dtype=np.int64)
-        for i1 in range(m1):
-            for i0 in range(m0):
-                _cube_corners(i0, i1, i2, m0, m1, m2, ir_map, rows)
-                for t in range(6):
-                    for b in range(nb):
-                        for r in range(4):
-                            e[r] = eig[rows[tets[t, r]], b]
-                            perm[r] = rows[tets[t, r]]
-                        if max(max(e[0], e[1]), max(e[2], e[3])) <= e_first:
-                            continue
-                        _sort4(e, perm)
-                        for r in range(4):
-                            bounds[r] = _first_above(e[r], e_first, de, ne)
-                        jlo = bounds[0]
-                        jhi = bounds[3]
-                        if jhi <= jlo:
-                            continue
-                        for reg in range(3):
-                            ja = bounds[reg]
-                            jb = bounds[reg + 1]
-                            if jb <= ja:
-                                continue
-                            if reg == 0:
-                                _poly_a(e[0], e[1], e[2], e[3], coef)
-                                origin = e[0]
-                                sign = 1.0
-                            elif reg == 1:
-                                _poly_b(e[0], e[1], e[2], e[3], coef)
-                                origin = e[1]
-                                sign = 1.0
-                            else:
-                                _poly_c(e[0], e[1], e[2], e[3], coef)
-                                origin = e[3]
-                                sign = -1.0
-                            if not with_ch:
-                                s0 = coef[0, 0] + coef[1, 0] + coef[2, 0] + coef[3, 0]
-                                s1 = coef[0, 1] + coef[1, 1] + coef[2, 1] + coef[3, 1]
-                                s2 = coef[0, 2] + coef[1, 2] + coef[2, 2] + coef[3, 2]
-                                s3 = coef[0, 3] + coef[1, 3] + coef[2, 3] + coef[3, 3]
-                                for j in range(ja, jb):
-                                    u = sign * (energies[j] - origin)
-                                    out_tot[i2, j] += ((s3 * u + s2) * u + s1) * u + s0
-                                continue
-                            c00, c01, c02, c03 = coef[0, 0], coef[0, 1], coef[0, 2], coef[0, 3]
-                            c10, c11, c12, c13 = coef[1, 0], coef[1, 1], coef[1, 2], coef[1, 3]
-                            c20, c21, c22, c23 = coef[2, 0], coef[2, 1], coef[2, 2], coef[2, 3]
-                            c30, c31, c32, c33 = coef[3, 0], coef[3, 1], coef[3, 2], coef[3, 3]
-                            for j in range(ja, jb):
-                                u = sign * (energies[j] - origin)
-                                jj = j - jlo
-                                v0 = ((c03 * u + c02) * u + c01) * u + c00
-                                v1 = ((c13 * u + c12) * u + c11) * u + c10
-                                v2 = ((c23 * u + c22) * u + c21) * u + c20
-                                v3 = ((c33 * u + c32) * u + c31) * u + c30
-                                dbuf[0, jj] = v0
-                                dbuf[1, jj] = v1
-                                dbuf[2, jj] = v2
-                                dbuf[3, jj] = v3
-                                out_tot[i2, j] += v0 + v1 + v2 + v3
-                        if not with_ch:
-                            continue
-                        for c in range(nch):
-                            p0 = proj[perm[0], b, c]
-                            p1 = proj[perm[1], b, c]
-                            p2 = proj[perm[2], b, c]
-                            p3 = proj[perm[3], b, c]
-                            for j in range(jlo, jhi):
-                                jj = j - jlo
-                                out_ch[i2, c, j] += (
-                                    dbuf[0, jj] * p0
-                                    + dbuf[1, jj] * p1
-                                    + dbuf[2, jj] * p2
-                                    + dbuf[3, jj] * p3
-                                )
+        for t in range(slot * per, min(nt, (slot + 1) * per)):
+            wt = mult[t]
+            for b in range(nb):
+                for r in range(4):
+                    e[r] = eig[rows[t, r], b]
+                    perm[r] = rows[t, r]
+                if max(max(e[0], e[1]), max(e[2], e[3])) <= e_first:
+                    continue
+                _sort4(e, perm)
+                for r in range(4):
+                    bounds[r] = _first_above(e[r], e_first, de, ne)
+                jlo = bounds[0]
+                jhi = bounds[3]
+                if jhi <= jlo:
+                    continue
+                for reg in range(3):
+                    ja = bounds[reg]
+                    jb = bounds[reg + 1]
+                    if jb <= ja:
+                        continue
+                    if reg == 0:
+                        _poly_a(e[0], e[1], e[2], e[3], coef)
+                        origin = e[0]
+                        sign = 1.0
+                    elif reg == 1:
+                        _poly_b(e[0], e[1], e[2], e[3], coef)
+                        origin = e[1]
+                        sign = 1.0
+                    else:
+                        _poly_c(e[0], e[1], e[2], e[3], coef)
+                        origin = e[3]
+                        sign = -1.0
+                    if not with_ch:
+                        s0 = coef[0, 0] + coef[1, 0] + coef[2, 0] + coef[3, 0]
+                        s1 = coef[0, 1] + coef[1, 1] + coef[2, 1] + coef[3, 1]
+                        s2 = coef[0, 2] + coef[1, 2] + coef[2, 2] + coef[3, 2]
+                        s3 = coef[0, 3] + coef[1, 3] + coef[2, 3] + coef[3, 3]
+                        for j in range(ja, jb):
+                            u = sign * (energies[j] - origin)
+                            out_tot[slot, j] += wt * (((s3 * u + s2) * u + s1) * u + s0)
+                        continue
+                    c00, c01, c02, c03 = coef[0, 0], coef[0, 1], coef[0, 2], coef[0, 3]
+                    c10, c11, c12, c13 = coef[1, 0], coef[1, 1], coef[1, 2], coef[1, 3]
+                    c20, c21, c22, c23 = coef[2, 0], coef[2, 1], coef[2, 2], coef[2, 3]
+                    c30, c31, c32, c33 = coef[3, 0], coef[3, 1], coef[3, 2], coef[3, 3]
+                    for j in range(ja, jb):
+                        u = sign * (energies[j] - origin)
+                        jj = j - jlo
+                        v0 = wt * (((c03 * u + c02) * u + c01) * u + c00)
+                        v1 = wt * (((c13 * u + c12) * u + c11) * u + c10)
+                        v2 = wt * (((c23 * u + c22) * u + c21) * u + c20)
+                        v3 = wt * (((c33 * u + c32) * u + c31) * u + c30)
+                        dbuf[0, jj] = v0
+                        dbuf[1, jj] = v1
+                        dbuf[2, jj] = v2
+                        dbuf[3, jj] = v3
+                        out_tot[slot, j] += v0 + v1 + v2 + v3
+                if not with_ch:
+                    continue
+                for c in range(nch):
+                    p0 = proj[perm[0], b, c]
+                    p1 = proj[perm[1], b, c]
+                    p2 = proj[perm[2], b, c]
+                    p3 = proj[perm[3], b, c]
+                    for j in range(jlo, jhi):
+                        jj = j - jlo
+                        out_ch[slot, c, j] += (
+                            dbuf[0, jj] * p0 + dbuf[1, jj] * p1 + dbuf[2, jj] * p2 + dbuf[3, jj] * p3
+                        )
 
 
 @numba.njit(cache=True, parallel=True)
-def _integrate_kernel(
-    m0, m1, m2, tets, ir_map, eig, values, energy, bloechl, out
-):  # pragma: no cover
+def _integrate_kernel(rows, mult, eig, values, energy, bloechl, out):  # pragma: no cover
+    """Σ over tetrahedron classes of mult × Σ_r w_r F_r; slot s of ``out`` is thread-private."""
     nb = eig.shape[1]
-    for i2 in numba.prange(m2):
-        rows = np.empty(8, dtype=np.int64)
+    nslot = out.shape[0]
+    nt = rows.shape[0]
+    per = (nt + nslot - 1) // nslot
+    for slot in numba.prange(nslot):
         e = np.empty(4)
         perm = np.empty(4, dtype=np.int64)
         w = np.empty(4)
-        d = np.empty(4)
         acc = 0.0
-        for i1 in range(m1):
-            for i0 in range(m0):
-                _cube_corners(i0, i1, i2, m0, m1, m2, ir_map, rows)
-                for t in range(6):
-                    for b in range(nb):
-                        for r in range(4):
-                            e[r] = eig[rows[tets[t, r]], b]
-                            perm[r] = rows[tets[t, r]]
-                        lo = min(min(e[0], e[1]), min(e[2], e[3]))
-                        if energy <= lo:
-                            continue
-                        hi = max(max(e[0], e[1]), max(e[2], e[3]))
-                        if energy >= hi:  # fully occupied: w = 1/4, correction D_T = 0
-                            acc += 0.25 * (
-                                values[perm[0], b]
-                                + values[perm[1], b]
-                                + values[perm[2], b]
-                                + values[perm[3], b]
-                            )
-                            continue
-                        _sort4(e, perm)
-                        _integration_weights(e[0], e[1], e[2], e[3], energy, w)
-                        if bloechl:
-                            dt = _dos_only(e[0], e[1], e[2], e[3], energy)
-                            s = e[0] + e[1] + e[2] + e[3]
-                            for r in range(4):
-                                w[r] += dt / 40.0 * (s - 4.0 * e[r])
-                        for r in range(4):
-                            acc += w[r] * values[perm[r], b]
-        out[i2] = acc
+        for t in range(slot * per, min(nt, (slot + 1) * per)):
+            wt = mult[t]
+            for b in range(nb):
+                for r in range(4):
+                    e[r] = eig[rows[t, r], b]
+                    perm[r] = rows[t, r]
+                lo = min(min(e[0], e[1]), min(e[2], e[3]))
+                if energy <= lo:
+                    continue
+                hi = max(max(e[0], e[1]), max(e[2], e[3]))
+                if energy >= hi:  # fully occupied: w = 1/4, correction D_T = 0
+                    acc += wt * 0.25 * (
+                        values[perm[0], b] + values[perm[1], b]
+                        + values[perm[2], b] + values[perm[3], b]
+                    )
+                    continue
+                _sort4(e, perm)
+                _integration_weights(e[0], e[1], e[2], e[3], energy, w)
+                if bloechl:
+                    dt = _dos_only(e[0], e[1], e[2], e[3], energy)
+                    s = e[0] + e[1] + e[2] + e[3]
+                    for r in range(4):
+                        w[r] += dt / 40.0 * (s - 4.0 * e[r])
+                for r in range(4):
+                    acc += wt * w[r] * values[perm[r], b]
+        out[slot] = acc
+
+
+#: Thread-private accumulator slots of the list kernels (a few per core balances the load).
+_SLOTS = 4 * max(1, numba.config.NUMBA_NUM_THREADS)
 
 
 def _tet_codes(tets: NDArray[np.int64]) -> NDArray[np.int64]:
@@ -398,29 +472,34 @@ def _tet_codes(tets: NDArray[np.int64]) -> NDArray[np.int64]:
     )
 
 
-def tetra_dos_numba(mesh, tets, ir_map, eig, energies, proj):
-    """Per-spin tetrahedron DOS (numba); inputs validated. Returns (total, channels|None)."""
+def tetra_dos_numba(mesh, tets, ir_map, eig, energies, proj, classes=None):
+    """Per-spin tetrahedron DOS (numba); inputs validated. Returns (total, channels|None).
+
+    ``classes``: the ``(rows, mult)`` of :func:`irreducible_tetrahedra`, built if None.
+    """
     m0, m1, m2 = (int(x) for x in mesh)
+    rows, mult = classes if classes is not None else irreducible_tetrahedra(
+        mesh, tets, ir_map, eig.shape[0])
     ne = energies.size
     with_ch = proj is not None
     p = proj if with_ch else np.zeros((1, 1, 0))
     nch = p.shape[2]
-    out_tot = np.zeros((m2, ne))
-    out_ch = np.zeros((m2 if with_ch else 1, nch, ne))
-    _dos_kernel(m0, m1, m2, _tet_codes(tets), ir_map, eig, p, energies, with_ch, out_tot, out_ch)
+    out_tot = np.zeros((_SLOTS, ne))
+    out_ch = np.zeros((_SLOTS if with_ch else 1, nch, ne))
+    _dos_kernel(rows, mult, eig, p, energies, with_ch, out_tot, out_ch)
     norm = 1.0 / (6.0 * m0 * m1 * m2)
     total = out_tot.sum(axis=0) * norm
     channels = out_ch.sum(axis=0) * norm if with_ch else None
     return total, channels
 
 
-def tetra_integrate_numba(mesh, tets, ir_map, eig, values, energy, bloechl):
+def tetra_integrate_numba(mesh, tets, ir_map, eig, values, energy, bloechl, classes=None):
     """Per-spin Σ_nk w_nk(E) F_nk (numba) with linear or Blöchl-corrected weights."""
     m0, m1, m2 = (int(x) for x in mesh)
-    out = np.zeros(m2)
-    _integrate_kernel(
-        m0, m1, m2, _tet_codes(tets), ir_map, eig, values, float(energy), bool(bloechl), out
-    )
+    rows, mult = classes if classes is not None else irreducible_tetrahedra(
+        mesh, tets, ir_map, eig.shape[0])
+    out = np.zeros(_SLOTS)
+    _integrate_kernel(rows, mult, eig, values, float(energy), bool(bloechl), out)
     return float(out.sum()) / (6.0 * m0 * m1 * m2)
 
 

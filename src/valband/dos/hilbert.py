@@ -11,7 +11,7 @@ Method (exact for the piecewise-linear interpolant of ρ)
         H_i = (1/π) Σ_j ρ_j K(i − j),   K(m) = (m+1) ln|m+1| − 2m ln|m| + (m−1) ln|m−1|
 
     (0·ln 0 = 0; K is the second difference of x ln|x|, K(0) = 0, K(m) → 1/m). The sum is
-    a linear convolution done by zero-padded FFT (:func:`scipy.signal.fftconvolve`), so
+    a linear convolution done by zero-padded FFT (:func:`_linear_convolution`), so
     there is no circular wrap-around; the only error is that of interpolating ρ linearly.
 
 Upper edge
@@ -27,12 +27,18 @@ import math
 
 import numpy as np
 from numpy.typing import NDArray
-from scipy.signal import fftconvolve
 
 from valband.dos._validate import check_uniform_grid, check_window
 from valband.errors import SettingsError
 
 __all__ = ["hilbert_transform", "hilbert_upper_edge"]
+
+
+def _linear_convolution(a: NDArray[np.float64], b: NDArray[np.float64]) -> NDArray[np.float64]:
+    """Full linear convolution of two real sequences by FFT, zero-padded (no wrap-around)."""
+    n = a.size + b.size - 1
+    size = 1 << (n - 1).bit_length()
+    return np.fft.irfft(np.fft.rfft(a, size) * np.fft.rfft(b, size), size)[:n]
 
 
 def _xlogx(x: NDArray[np.float64]) -> NDArray[np.float64]:
@@ -96,7 +102,7 @@ def hilbert_transform(
     idx, _ = window_nodes(grid, step, window)
     rho = d[idx]
     n = rho.size
-    h = fftconvolve(rho, _kernel(n), mode="full")[n - 1 : 2 * n - 1] / math.pi
+    h = _linear_convolution(rho, _kernel(n))[n - 1 : 2 * n - 1] / math.pi
     return grid[idx], h
 
 

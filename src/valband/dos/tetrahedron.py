@@ -1,4 +1,4 @@
-"""Linear tetrahedron method on a Γ-centred k-mesh, unfolded from irreducible points.
+"""Linear tetrahedron method on a k-mesh (Γ-centred or shifted), unfolded from irreducible points.
 
 Reference: P. E. Blöchl, O. Jepsen, O. K. Andersen, Phys. Rev. B 49, 16223 (1994).
 
@@ -17,10 +17,14 @@ DOS
     derivative of Blöchl's integration weights; Σ_r d_r is the tetrahedron DOS, so channels
     whose projections sum to one per state sum to the total.
 
-Memory
-    The kernels loop over cubes and look up corners through ``ir_map`` on the fly; no full
-    (nfull, nb) or per-tetrahedron array is built. Extra memory is one accumulator row per
-    value of i2, m2·(1 + nch)·ne floats.
+Tetrahedron classes
+    Tetrahedra whose four corners map to the same irreducible points have identical
+    energies and projections; they are grouped once per mesh (:func:`tetrahedron_classes`,
+    one int64 key per tetrahedron, sorted) and each class is integrated once with its
+    multiplicity (Blöchl et al. 1994, Sec. III). With symmetry this divides the work by up
+    to the order of the point group. No (nfull, nb) array is built: the kernels read
+    energies and projections of the irreducible points only; grouping needs 6·nfull keys
+    (8 bytes each) once, and the kernels a few thread-private (1 + nch)·ne accumulators.
 
 Blöchl's correction
     δw_r = Σ_T D_T(E)/40 · Σ_s (ε_s − ε_r) (Sec. IV of the reference) sums to zero over the
@@ -38,7 +42,11 @@ import numbers
 import numpy as np
 from numpy.typing import NDArray
 
-from valband.dos._tetra_kernels import tetra_dos_numba, tetra_integrate_numba
+from valband.dos._tetra_kernels import (
+    irreducible_tetrahedra,
+    tetra_dos_numba,
+    tetra_integrate_numba,
+)
 from valband.dos._validate import (
     check_channel_weights,
     check_degeneracy,
@@ -49,6 +57,7 @@ from valband.errors import SettingsError
 
 __all__ = [
     "cube_tetrahedra",
+    "tetrahedron_classes",
     "tetrahedron_dos",
     "tetrahedron_count",
     "tetrahedron_integrate",
@@ -149,6 +158,17 @@ def cube_tetrahedra(mesh, reciprocal_cell) -> NDArray[np.int64]:
     return tets
 
 
+def tetrahedron_classes(mesh, reciprocal_cell, ir_map, n_irreducible: int):
+    """Group the mesh's tetrahedra by their irreducible corners (do once, reuse).
+
+    Returns ``(rows, mult)``: int64 (n_classes, 4) corner rows and float64 (n_classes,)
+    multiplicities, to pass as ``classes=`` to the other functions of this module.
+    """
+    m = _check_mesh(mesh)
+    im = _check_ir_map(ir_map, int(np.prod(m)), int(n_irreducible))
+    return irreducible_tetrahedra(m, cube_tetrahedra(m, reciprocal_cell), im, int(n_irreducible))
+
+
 def _prepare(mesh, reciprocal_cell, ir_map, eig_ir):
     m = _check_mesh(mesh)
     tets = cube_tetrahedra(m, reciprocal_cell)
@@ -165,6 +185,7 @@ def tetrahedron_dos(
     energies,
     channel_weights_ir=None,
     degeneracy: float = 2.0,
+    classes=None,
 ) -> tuple[NDArray[np.float64], NDArray[np.float64] | None]:
     """Linear tetrahedron DOS on a uniform energy grid.
 
@@ -186,6 +207,7 @@ def tetrahedron_dos(
         closed under the point group, e.g. per site and l).
     degeneracy : float
         States per band and k-point (2 for spin-degenerate bands).
+    classes : (rows, mult) from :func:`tetrahedron_classes`, or None to build them here.
 
     Returns
     -------
@@ -197,7 +219,7 @@ def tetrahedron_dos(
     proj = check_channel_weights(channel_weights_ir, eig.shape[0], eig.shape[1],
                                  name="channel_weights_ir")
     deg = check_degeneracy(degeneracy)
-    total, channels = tetra_dos_numba(m, tets, im, eig, grid, proj)
+    total, channels = tetra_dos_numba(m, tets, im, eig, grid, proj, classes)
     total *= deg
     if channels is not None:
         channels *= deg
@@ -213,6 +235,7 @@ def tetrahedron_integrate(
     values_ir=None,
     degeneracy: float = 2.0,
     bloechl: bool = True,
+    classes=None,
 ) -> float:
     """Σ_nk w_nk(E) F_nk: a k-dependent quantity integrated over the states below E.
 
@@ -231,6 +254,7 @@ def tetrahedron_integrate(
         F at every irreducible state (any unit); None means 1.
     degeneracy : float
     bloechl : bool
+    classes : (rows, mult) from :func:`tetrahedron_classes`, or None.
 
     Returns
     -------
@@ -255,7 +279,7 @@ def tetrahedron_integrate(
         if e < 0:
             return 0.0
         e = float(eig.max()) + 1.0  # every weight is exactly 1/4 above the top corner
-    return deg * tetra_integrate_numba(m, tets, im, eig, vals, e, bool(bloechl))
+    return deg * tetra_integrate_numba(m, tets, im, eig, vals, e, bool(bloechl), classes)
 
 
 def tetrahedron_count(
@@ -266,6 +290,7 @@ def tetrahedron_count(
     energy,
     degeneracy: float = 2.0,
     bloechl: bool = True,
+    classes=None,
 ) -> float:
     """Integrated DOS N(E), electrons per cell below ``energy`` (eV).
 
@@ -286,7 +311,7 @@ def tetrahedron_count(
     float
     """
     return tetrahedron_integrate(
-        mesh, reciprocal_cell, ir_map, eig_ir, energy, None, degeneracy, bloechl
+        mesh, reciprocal_cell, ir_map, eig_ir, energy, None, degeneracy, bloechl, classes
     )
 
 

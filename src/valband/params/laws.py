@@ -26,7 +26,6 @@ from typing import Any, ClassVar
 
 import numpy as np
 from numpy.typing import NDArray
-from scipy.interpolate import CubicSpline
 
 from valband.errors import ParameterError
 
@@ -165,9 +164,11 @@ class SplineLaw(DistanceLaw):
     kind: ClassVar[str] = "spline"
     r: tuple[float, ...]
     v: tuple[float, ...]
-    _spline: CubicSpline = field(init=False, repr=False, compare=False)
+    _spline: object = field(init=False, repr=False, compare=False)  # scipy CubicSpline
 
     def __post_init__(self) -> None:
+        from scipy.interpolate import CubicSpline  # imported here: heavy, and rarely needed
+
         spline = CubicSpline(np.array(self.r), np.array(self.v), bc_type="not-a-knot")
         object.__setattr__(self, "_spline", spline)
 

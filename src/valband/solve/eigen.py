@@ -5,6 +5,14 @@ For each chunk the Hamiltonian (and overlap) are assembled, diagonalised with LA
 the requested channels, so that the (n_k, n_orb, n_orb) eigenvector array never exists for the
 whole mesh: memory is bounded by the chunk size plus O(n_k · n_bands · n_channels).
 
+Real gauge. When every site is an inversion centre of its bonds (every bond i → j along d has
+a partner along −d with the parity-transformed block, as in monatomic Bravais lattices,
+B2 and L1₂ — not hcp or diamond), H(k) and S(k) become real symmetric after the diagonal unitary
+D = diag(i^l) of each orbital's angular momentum l: (D†HD)* = D†HD. The solver detects this
+once per model on random k-points and then diagonalises real matrices with the compiled
+small-matrix solver of :mod:`valband.solve.small_eigh` (about three times faster than LAPACK
+on 9×9); eigenvalues are unchanged and, since |(Dy)_i| = |y_i|, so are the projections.
+
 Non-orthogonal sets solve H c = ε S c through the Cholesky factor S = L Lᴴ:
 (L⁻¹ H L⁻ᴴ) y = ε y, c = L⁻ᴴ y. Projections are Mulliken weights w_iν = Re(c*_iν (S c)_iν)
 (Mulliken, J. Chem. Phys. 23, 1833 (1955)), which sum to one per state and may be slightly negative.
@@ -17,8 +25,9 @@ from numpy.typing import NDArray
 
 from valband.errors import CalculationError
 from valband.progress import Progress
+from valband.solve.small_eigh import SMALL_MAX_SIZE, eigh_small
 
-__all__ = ["diagonalise", "DEFAULT_CHUNK_BYTES"]
+__all__ = ["diagonalise", "real_gauge", "DEFAULT_CHUNK_BYTES"]
 
 #: Memory budget (bytes) of one chunk's complex matrices (H, S, eigenvectors).
 DEFAULT_CHUNK_BYTES = 32 * 2**20
@@ -57,6 +66,7 @@ def diagonalise(
         Projection of each state on each channel (Mulliken for non-orthogonal sets).
     """
     kpoints = np.ascontiguousarray(kpoints, dtype=np.float64)
+    gauge = real_gauge(model)
     n_k = len(kpoints)
     n_orb = model.n_orbitals
     step = _chunk_size(n_orb, chunk_bytes)
@@ -70,6 +80,9 @@ def diagonalise(
         for start in range(0, n_k, step):
             stop = min(start + step, n_k)
             h, s = model.hamiltonian_and_overlap(kpoints[start:stop])
+            if gauge is not None:
+                h = (h * gauge).real
+                s = None if s is None else (s * gauge).real
             e, w = _solve_chunk(h, s, channels)
             eig[start:stop] = e
             if wts is not None:
@@ -80,14 +93,41 @@ def diagonalise(
     return eig, wts
 
 
+def real_gauge(model, n_test: int = 3, seed: int = 12345) -> NDArray[np.complex128] | None:
+    """The (n_orb, n_orb) factor conj(D_a)·D_b that makes H(k) real, or None if it does not.
+
+    D = i^l per orbital. Checked on ``n_test`` pseudo-random k-points (fixed seed, so the
+    decision is reproducible); a bond set without the inversion partner fails at generic k.
+    """
+    from valband.conventions import SHELL_L
+
+    d = np.array([1j ** SHELL_L[o.shell] for o in model.orbitals])
+    factor = np.conj(d)[:, None] * d[None, :]
+    k = np.random.default_rng(seed).uniform(-0.5, 0.5, size=(n_test, 3))
+    h, s = model.hamiltonian_and_overlap(k)
+    for m in (h, s):
+        if m is None:
+            continue
+        t = m * factor
+        if np.abs(t.imag).max() > 1e-12 * max(np.abs(t).max(), 1.0):
+            return None
+    return factor
+
+
+def _eigh(m):
+    """Batched eigh: the compiled small-matrix solver for real stacks, else LAPACK."""
+    if not np.iscomplexobj(m) and m.shape[-1] <= SMALL_MAX_SIZE:
+        return eigh_small(m)
+    return np.linalg.eigh(m)
+
+
 def _solve_chunk(h, s, channels):
     """Diagonalise one chunk; return eigenvalues and channel weights (or None)."""
     if s is None:
-        want_vectors = channels is not None
-        if not want_vectors:
-            return np.linalg.eigvalsh(h), None
-        e, c = np.linalg.eigh(h)
-        w = (c.real**2 + c.imag**2)  # (k, orbital, band)
+        e, c = _eigh(h)
+        if channels is None:
+            return e, None
+        w = np.abs(c) ** 2 if np.iscomplexobj(c) else c * c  # (k, orbital, band)
     else:
         try:
             chol = np.linalg.cholesky(s)
@@ -97,11 +137,12 @@ def _solve_chunk(h, s, channels):
                 "integrals of the parameter set are too large for this structure (atoms too close?)"
             ) from None
         linv = np.linalg.inv(chol)
-        hp = linv @ h @ np.conj(np.swapaxes(linv, -1, -2))
+        linv_h = np.conj(np.swapaxes(linv, -1, -2))
+        hp = linv @ h @ linv_h
+        e, y = _eigh(hp)
         if channels is None:
-            return np.linalg.eigvalsh(hp), None
-        e, y = np.linalg.eigh(hp)
-        c = np.conj(np.swapaxes(linv, -1, -2)) @ y
+            return e, None
+        c = linv_h @ y
         w = (np.conj(c) * (s @ c)).real
     # (k, band, orbital) @ (orbital, channel) -> (k, band, channel)
     return e, np.swapaxes(w, 1, 2) @ channels

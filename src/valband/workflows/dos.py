@@ -19,6 +19,7 @@ from valband.dos import (
     find_fermi_level,
     smearing_count,
     smearing_dos,
+    tetrahedron_classes,
     tetrahedron_count,
     tetrahedron_dos,
 )
@@ -92,6 +93,23 @@ def _orbit_average(weights: np.ndarray, chans, structure) -> np.ndarray:
     return weights @ avg.T
 
 
+def _narrow_bracket(count, eig, k_weights, n_el, half_width, lower, upper):
+    """A tight Fermi-level bracket around the step-function estimate, if it brackets.
+
+    The T = 0 count of the unsmeared states puts E_F within a few smearing widths of the
+    state where the cumulative occupation reaches ``n_el``; a narrow bracket saves most of
+    the root finder's count evaluations. Falls back to (lower, upper) when it does not hold.
+    """
+    flat = eig.ravel()
+    order = np.argsort(flat)
+    occ = np.cumsum(np.repeat(SPIN_DEGENERACY * k_weights, eig.shape[1])[order])
+    e0 = flat[order[min(int(np.searchsorted(occ, n_el)), flat.size - 1)]]
+    a, b = max(lower, e0 - half_width), min(upper, e0 + half_width)
+    if a < b and count(a) <= n_el <= count(b):
+        return a, b
+    return lower, upper
+
+
 def compute_dos(model, settings: DOSSettings | None = None, progress: bool = False) -> DOSResult:
     """Total and partial DOS of a tight-binding model on a k-mesh.
 
@@ -121,9 +139,11 @@ def compute_dos(model, settings: DOSSettings | None = None, progress: bool = Fal
     lo, hi = float(eig.min()), float(eig.max())
     if s.method == "tetrahedron":
         rc = structure.reciprocal_cell
+        classes = tetrahedron_classes(kmesh.mesh, rc, kmesh.ir_map, kmesh.n_irreducible)
 
         def count(e: float) -> float:
-            return tetrahedron_count(kmesh.mesh, rc, kmesh.ir_map, eig, e, degeneracy=SPIN_DEGENERACY)
+            return tetrahedron_count(kmesh.mesh, rc, kmesh.ir_map, eig, e,
+                                     degeneracy=SPIN_DEGENERACY, classes=classes)
 
         margin = 1e-6
     else:
@@ -131,7 +151,10 @@ def compute_dos(model, settings: DOSSettings | None = None, progress: bool = Fal
             return smearing_count(eig, kmesh.weights, e, s.width, s.method, degeneracy=SPIN_DEGENERACY)
 
         margin = 50.0 * s.width if s.method == "gaussian" else 1e4 * s.width
-    e_f = find_fermi_level(count, n_el, lo - margin, hi + margin, max_electrons=max_el)
+    lower, upper = lo - margin, hi + margin
+    if s.method == "gaussian" and 0 <= n_el <= max_el:
+        lower, upper = _narrow_bracket(count, eig, kmesh.weights, n_el, 12.0 * s.width, lower, upper)
+    e_f = find_fermi_level(count, n_el, lower, upper, max_electrons=max_el, tol=1e-8)
 
     pad = 1.0 + (0.0 if s.method == "tetrahedron" else 5.0 * s.width)
     emin = s.emin if s.emin is not None else np.floor(lo - e_f - pad)
@@ -143,7 +166,7 @@ def compute_dos(model, settings: DOSSettings | None = None, progress: bool = Fal
     if s.method == "tetrahedron":
         total, chan = tetrahedron_dos(
             kmesh.mesh, structure.reciprocal_cell, kmesh.ir_map, eig, grid + e_f, w,
-            degeneracy=SPIN_DEGENERACY,
+            degeneracy=SPIN_DEGENERACY, classes=classes,
         )
     else:
         total, chan = smearing_dos(
