@@ -14,11 +14,17 @@ from pathlib import Path
 from valband.output import prepare_out_dir, write_csv
 from valband.writers import summary_of, write_summary
 
-__all__ = ["demo_candidates", "run_demo", "DEMO_NOTE"]
+__all__ = ["demo_candidates", "run_demo", "DEMO_NOTE", "DEFAULT_SET_CAUTION"]
 
 DEMO_NOTE = (
     "Invented demo scenario: the Halvard Ridge catalysis group is fictional. Results are model "
     "estimates from a tight-binding parameter set, not measurements."
+)
+
+#: Said with every demo run on the default set (see README, "Parameter sets").
+DEFAULT_SET_CAUTION = (
+    "Caution: the default harrison-universal set places E_F too close to the top of the "
+    "noble-metal d bands; this ranking demonstrates the workflow and is not a prediction."
 )
 
 
@@ -63,17 +69,21 @@ def run_demo(out_dir: str | Path, params: str = "harrison-universal", mesh: str 
             "per_element_centre_eV": {e: d.centre for e, d in table.elements.items()},
         })
     rows.sort(key=lambda r: r["d_band_centre_eV"], reverse=True)
+    cautions = [DEFAULT_SET_CAUTION] if pset.name == "harrison-universal" else []
     write_csv(
         out / "screening.csv",
-        ["rank", "d_band_centre_eV", "d_band_width_eV", "d_filling", "d_upper_edge_eV",
-         "dos_at_fermi_per_atom"],
-        [list(range(1, len(rows) + 1))] + [[r[k] for r in rows] for k in (
+        ["rank", "name", "formula", "d_band_centre_eV", "d_band_width_eV", "d_filling",
+         "d_upper_edge_eV", "dos_at_fermi_per_atom"],
+        [list(range(1, len(rows) + 1)), [r["name"] for r in rows], [r["formula"] for r in rows]]
+        + [[r[k] for r in rows] for k in (
             "d_band_centre_eV", "d_band_width_eV", "d_filling", "d_upper_edge_eV", "dos_at_fermi")],
-        comments=[DEMO_NOTE, "rows in the order of names: " + " ".join(r["name"] for r in rows),
+        comments=[DEMO_NOTE, *cautions,
+                  "energies in eV relative to E_F; DOS at E_F in states/eV/atom (both spins)",
                   f"parameter set {pset.name} {pset.version}; mesh {mesh}; Gaussian 0.1 eV"],
     )
     summary = summary_of("demo", None, extra={
-        "scenario": scenario, "note": DEMO_NOTE, "parameter_set": {"name": pset.name,
+        "scenario": scenario, "note": DEMO_NOTE,
+        "parameter_set_caution": cautions[0] if cautions else None, "parameter_set": {"name": pset.name,
                                                                    "version": pset.version},
         "settings": {"mesh": mesh, "method": "gaussian", "width": 0.1},
         "screening": rows,

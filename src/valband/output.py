@@ -73,16 +73,23 @@ def write_json(path: str | Path, data: dict) -> Path:
 
 
 def write_csv(path: str | Path, header: list[str], columns: list, comments: list[str] = ()) -> Path:
-    """Write columns of equal length as CSV with ``# `` comment lines first (atomic)."""
+    """Write columns of equal length as CSV with ``# `` comment lines first (atomic).
+
+    Numeric columns are written with 8 significant digits (``%.8g``), text columns as they are
+    (they must not contain commas).
+    """
     cols = [np.asarray(c) for c in columns]
     n = {len(c) for c in cols}
     if len(n) != 1 or len(header) != len(cols):
         raise ValueError("write_csv: columns must have equal lengths and one header each")
+    text = [np.char.mod("%.8g", c.astype(np.float64)) if c.dtype.kind in "fiub" else c.astype(str)
+            for c in cols]
     with atomic_write(path) as fh:
         for line in comments:
             fh.write(f"# {line}\n")
         fh.write(",".join(header) + "\n")
-        np.savetxt(fh, np.column_stack([c.astype(np.float64) for c in cols]), delimiter=",", fmt="%.8g")
+        for row in zip(*text, strict=True):
+            fh.write(",".join(row) + "\n")
     return Path(path)
 
 

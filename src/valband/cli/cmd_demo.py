@@ -33,5 +33,7 @@ def run(args) -> int:
         for i, r in enumerate(summary["screening"], 1):
             print(f"{i:4d}  {r['name']:9s}  {r['d_band_centre_eV']:18.3f}  "
                   f"{r['d_band_width_eV']:10.3f}  {r['d_filling']:7.3f}")
+        if summary.get("parameter_set_caution"):
+            print(summary["parameter_set_caution"])
         print(f"results in {args.out}/ (summary.json, screening.csv, one folder per candidate)")
     return 0
