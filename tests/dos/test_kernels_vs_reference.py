@@ -13,8 +13,8 @@ from tests.dos.models import reciprocal
 from valband.dos import cube_tetrahedra
 from valband.dos._smearing_kernels import smear_numba, smear_reference
 from valband.dos._tetra_kernels import (
-    tetra_dos_numba,
     tetra_count_reference,
+    tetra_dos_numba,
     tetra_dos_reference,
     tetra_integrate_numba,
     tetra_integrate_reference,

@@ -155,6 +155,6 @@ def bloch_sum_reference(
     norb = len(diag)
     half = np.zeros((len(kcart), norb, norb), dtype=np.complex128)
     phases = np.exp(1j * (kcart @ np.asarray(vectors, dtype=np.float64).T))  # (nk, n_half)
-    for b, (i, j) in enumerate(zip(first, second)):
+    for b, (i, j) in enumerate(zip(first, second, strict=True)):
         half[:, site_slices[i], site_slices[j]] += phases[:, b, None, None] * blocks[b][None]
     return half + np.conj(np.swapaxes(half, 1, 2)) + np.diag(diag)[None]

@@ -496,7 +496,7 @@ def build_model(structure: Structure, params) -> TBModel:
         r = np.ascontiguousarray(dist[idx])
         dirs = vectors[idx] / r[:, None]
         kinds = ["hopping"] if orthogonal else ["hopping", "overlap"]
-        for kind, store in zip(kinds, (hblocks, sblocks)):
+        for kind, store in zip(kinds, (hblocks, sblocks), strict=False):
             v = _integrals(params, kind, a, b, r)
             _check_reciprocity(params, kind, a, b, r, v)
             full = sk_blocks(dirs, v)
