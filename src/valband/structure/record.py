@@ -6,6 +6,7 @@ inside valband a structure is this small frozen record with read-only arrays.
 
 from __future__ import annotations
 
+import functools
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -98,10 +99,12 @@ class Structure:
         """Cell volume in Å³."""
         return float(abs(np.linalg.det(self.cell)))
 
-    @property
+    @functools.cached_property
     def numbers(self) -> NDArray[np.int64]:
-        """Atomic numbers, shape (n_sites,)."""
-        return np.array([atomic_numbers[s] for s in self.symbols], dtype=np.int64)
+        """Atomic numbers, shape (n_sites,), read-only."""
+        out = np.array([atomic_numbers[s] for s in self.symbols], dtype=np.int64)
+        out.setflags(write=False)
+        return out
 
     @property
     def scaled_positions(self) -> NDArray[np.float64]:
@@ -114,7 +117,7 @@ class Structure:
         """Reciprocal lattice vectors as rows, including the 2π, in 1/Å."""
         return 2.0 * np.pi * np.linalg.inv(self.cell).T
 
-    @property
+    @functools.cached_property
     def elements(self) -> tuple[str, ...]:
         """Distinct elements in order of first appearance."""
         return tuple(dict.fromkeys(self.symbols))
