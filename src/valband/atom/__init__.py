@@ -1,0 +1,28 @@
+"""Radial Kohn–Sham atom: LDA (VWN or PW92), non- or scalar-relativistic, bound states.
+
+Public entry points
+    :func:`solve_atom` → :class:`AtomResult`; :func:`ground_state_configuration` and
+    :func:`parse_configuration` for electron configurations. Internals work in Hartree and
+    bohr; the result converts at its edge (``eigenvalues_ev()``, ``r_angstrom()``).
+
+This package does not import the tight-binding code.
+"""
+
+from .configurations import (
+    ConfigurationError,
+    format_configuration,
+    ground_state_configuration,
+    parse_configuration,
+)
+from .scf import AtomResult, EnergyComponents, Orbital, solve_atom
+
+__all__ = [
+    "AtomResult",
+    "ConfigurationError",
+    "EnergyComponents",
+    "Orbital",
+    "format_configuration",
+    "ground_state_configuration",
+    "parse_configuration",
+    "solve_atom",
+]
