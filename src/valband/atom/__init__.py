@@ -14,7 +14,9 @@ from .configurations import (
     ground_state_configuration,
     parse_configuration,
 )
+from .photoionization import ValenceCrossSection, valence_cross_sections
 from .scf import AtomResult, EnergyComponents, Orbital, solve_atom
+from .spin_orbit import spin_orbit_constant, spin_orbit_constant_ev
 
 __all__ = [
     "AtomResult",
@@ -25,4 +27,8 @@ __all__ = [
     "ground_state_configuration",
     "parse_configuration",
     "solve_atom",
+    "spin_orbit_constant",
+    "spin_orbit_constant_ev",
+    "ValenceCrossSection",
+    "valence_cross_sections",
 ]
