@@ -29,6 +29,7 @@ def atomic_write(path: str | Path, mode: str = "w") -> Iterator:
     """Open a temporary file next to ``path``; rename it onto ``path`` only on success."""
     path = Path(path)
     fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".part", dir=path.parent)
+    os.chmod(tmp, 0o666 & ~_umask())  # mkstemp makes 0600; give the usual permissions
     try:
         with os.fdopen(fd, mode, newline="" if "b" not in mode else None) as fh:
             yield fh
@@ -37,6 +38,13 @@ def atomic_write(path: str | Path, mode: str = "w") -> Iterator:
         with contextlib.suppress(FileNotFoundError):
             os.unlink(tmp)
         raise
+
+
+def _umask() -> int:
+    """The process umask (read by setting and restoring it)."""
+    mask = os.umask(0)
+    os.umask(mask)
+    return mask
 
 
 def _json_default(obj):

@@ -128,3 +128,14 @@ def test_failed_run_leaves_existing_files_intact(capsys, tmp_path):
                "--quiet")[0] == 1
     assert (out / "summary.json").read_text() == before
     assert not list(out.glob(".*.part"))
+
+
+def test_output_files_have_ordinary_permissions(capsys, tmp_path):
+    # Files are written to a temporary name and renamed; they must still get the usual
+    # permissions (0666 less the umask), not mkstemp's private 0600 (common practice).
+    import os
+
+    assert run(capsys, "dos", "Cu fcc", "--mesh", "4", "--out", str(tmp_path / "p"), "--quiet")[0] == 0
+    mask = os.umask(0)
+    os.umask(mask)
+    assert (tmp_path / "p" / "summary.json").stat().st_mode & 0o777 == 0o666 & ~mask

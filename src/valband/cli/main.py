@@ -18,6 +18,7 @@ COMMANDS: dict[str, tuple[str, str]] = {
     "bands": ("valband.cli.cmd_bands", "band structure along a path, with orbital character"),
     "describe": ("valband.cli.cmd_describe", "d-band descriptors only (table or JSON)"),
     "demo": ("valband.cli.cmd_demo", "run the bundled (invented) demo scenario end to end"),
+    "xsec": ("valband.cli.cmd_xsec", "valence-subshell photoionization cross sections and β at a photon energy"),
 }
 
 
