@@ -21,16 +21,7 @@ import argparse
 import time
 
 import numpy as np
-
-
-def best_of(fn, repeat: int) -> float:
-    """Shortest wall time of ``repeat`` calls (seconds)."""
-    times = []
-    for _ in range(repeat):
-        t = time.perf_counter()
-        fn()
-        times.append(time.perf_counter() - t)
-    return min(times)
+from timing import best_of
 
 
 def baseline(repeat: int) -> float:

@@ -16,19 +16,9 @@ import os
 import subprocess
 import sys
 import tempfile
-import time
 
 import numpy as np
-
-
-def best_of(fn, repeat: int) -> float:
-    """Shortest wall time of ``repeat`` calls (seconds)."""
-    times = []
-    for _ in range(repeat):
-        t = time.perf_counter()
-        fn()
-        times.append(time.perf_counter() - t)
-    return min(times)
+from timing import best_of
 
 
 def bare_eigh_time(model, kpoints, repeat: int) -> float:
