@@ -19,6 +19,7 @@ COMMANDS: dict[str, tuple[str, str]] = {
     "describe": ("valband.cli.cmd_describe", "d-band descriptors only (table or JSON)"),
     "demo": ("valband.cli.cmd_demo", "run the bundled (invented) demo scenario end to end"),
     "xsec": ("valband.cli.cmd_xsec", "valence-subshell photoionization cross sections and β at a photon energy"),
+    "simulate": ("valband.cli.cmd_simulate", "simulated valence-band photoemission spectrum at a photon energy"),
 }
 
 
