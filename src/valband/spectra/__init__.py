@@ -3,7 +3,8 @@
 :func:`simulate_spectrum` turns a :class:`~valband.results.DOSResult` into a :class:`Spectrum`
 (binding energy ascending, eV; intensity in Mb·states/eV per cell); :mod:`.broadening` holds
 the Fermi–Dirac, lifetime and instrument kernels, :mod:`.imfp` the TPP-2M mean free paths and
-depth weights, :mod:`.io` and :mod:`.plot` the files and the figure.
+depth weights, :mod:`.io` and :mod:`.plot` the files and the figure. Measured spectra are read
+by :func:`read_spectrum` (two-column text/CSV, ISO 14976 VAMAS via :mod:`.vamas`).
 """
 
 from valband.spectra.broadening import (
@@ -13,10 +14,12 @@ from valband.spectra.broadening import (
     lorentzian_broaden,
 )
 from valband.spectra.imfp import ELEMENTS, depth_weights, imfp_of, tpp2m_imfp
+from valband.spectra.measured import MeasuredSpectrum, read_spectrum
 from valband.spectra.simulate import Spectrum, channel_weights, simulate_spectrum
 
 __all__ = [
     "Spectrum", "simulate_spectrum", "channel_weights",
     "fermi_dirac", "gaussian_broaden", "lorentzian_broaden", "lifetime_width",
     "ELEMENTS", "depth_weights", "imfp_of", "tpp2m_imfp",
+    "MeasuredSpectrum", "read_spectrum",
 ]
