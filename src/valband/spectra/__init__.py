@@ -4,15 +4,19 @@
 (binding energy ascending, eV; intensity in Mb·states/eV per cell); :mod:`.broadening` holds
 the Fermi–Dirac, lifetime and instrument kernels, :mod:`.imfp` the TPP-2M mean free paths and
 depth weights, :mod:`.io` and :mod:`.plot` the files and the figure. Measured spectra are read
-by :func:`read_spectrum` (two-column text/CSV, ISO 14976 VAMAS via :mod:`.vamas`).
+by :func:`read_spectrum` (two-column text/CSV, ISO 14976 VAMAS via :mod:`.vamas`); backgrounds
+(Shirley, Tougaard, linear) are in :mod:`.background`, the Fermi-edge calibration in
+:mod:`.calibrate`.
 """
 
+from valband.spectra.background import linear_background, shirley_background, tougaard_background
 from valband.spectra.broadening import (
     fermi_dirac,
     gaussian_broaden,
     lifetime_width,
     lorentzian_broaden,
 )
+from valband.spectra.calibrate import FermiEdgeFit, apply_shift, fit_fermi_edge
 from valband.spectra.imfp import ELEMENTS, depth_weights, imfp_of, tpp2m_imfp
 from valband.spectra.measured import MeasuredSpectrum, read_spectrum
 from valband.spectra.simulate import Spectrum, channel_weights, simulate_spectrum
@@ -22,4 +26,6 @@ __all__ = [
     "fermi_dirac", "gaussian_broaden", "lorentzian_broaden", "lifetime_width",
     "ELEMENTS", "depth_weights", "imfp_of", "tpp2m_imfp",
     "MeasuredSpectrum", "read_spectrum",
+    "shirley_background", "tougaard_background", "linear_background",
+    "FermiEdgeFit", "fit_fermi_edge", "apply_shift",
 ]
