@@ -22,8 +22,8 @@ import numpy as np
 
 from valband.atom.configurations import ground_state_configuration, resolve_element
 from valband.atom.continuum import latter_tail
-from valband.atom.grid import make_grid
 from valband.atom.cross_section import subshell_cross_section_ev
+from valband.atom.grid import make_grid
 from valband.atom.scf import HARTREE_EV, AtomResult, solve_atom
 from valband.errors import CalculationError, SettingsError
 
