@@ -31,6 +31,7 @@ import numpy as np
 import scipy.constants as _sc
 from numpy.typing import NDArray
 
+from valband.arrays import readonly
 from valband.errors import CalculationError, SettingsError
 
 from .configurations import (
@@ -62,12 +63,6 @@ __all__ = [
 HARTREE_EV: float = _sc.physical_constants["Hartree energy in eV"][0]
 #: Bohr radius in Å (CODATA via scipy.constants).
 BOHR_ANGSTROM: float = _sc.physical_constants["Bohr radius"][0] * 1e10
-
-
-def _readonly(a: NDArray) -> NDArray:
-    a = np.array(a, dtype=float)
-    a.setflags(write=False)
-    return a
 
 
 @dataclass(frozen=True, eq=False)
@@ -491,10 +486,10 @@ def solve_atom(
         correlation=correlation,
         grid=grid,
         r=grid.r,
-        potential=_readonly(v_in),
-        hartree_potential=_readonly(v_h),
-        xc_potential=_readonly(v_xc),
-        density=_readonly(rho_out),
+        potential=readonly(v_in),
+        hartree_potential=readonly(v_h),
+        xc_potential=readonly(v_xc),
+        density=readonly(rho_out),
         orbitals=orbitals,
         energies=energies,
         iterations=it,

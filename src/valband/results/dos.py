@@ -7,16 +7,11 @@ from dataclasses import dataclass, field
 import numpy as np
 from numpy.typing import NDArray
 
+from valband.arrays import readonly
 from valband.errors import InputError
 from valband.results.channels import Channel
 
 __all__ = ["DOSResult"]
-
-
-def _ro(a) -> NDArray[np.float64]:
-    a = np.array(a, dtype=np.float64, copy=True)
-    a.setflags(write=False)
-    return a
 
 
 @dataclass(frozen=True, eq=False)
@@ -56,9 +51,9 @@ class DOSResult:
     provenance: dict = field(default_factory=dict)
 
     def __post_init__(self) -> None:
-        object.__setattr__(self, "energies", _ro(self.energies))
-        object.__setattr__(self, "total", _ro(self.total))
-        object.__setattr__(self, "channels", _ro(self.channels).reshape(len(self.channel_labels), -1))
+        object.__setattr__(self, "energies", readonly(self.energies))
+        object.__setattr__(self, "total", readonly(self.total))
+        object.__setattr__(self, "channels", readonly(self.channels).reshape(len(self.channel_labels), -1))
         object.__setattr__(self, "channel_labels", tuple(self.channel_labels))
         if self.total.shape != self.energies.shape or self.channels.shape[1] != len(self.energies):
             raise ValueError("DOSResult: energies, total and channels must share the energy axis")

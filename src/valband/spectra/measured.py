@@ -20,6 +20,7 @@ from pathlib import Path
 import numpy as np
 from numpy.typing import NDArray
 
+from valband.arrays import readonly
 from valband.errors import InputError
 from valband.output import SCHEMA_VERSION
 
@@ -33,12 +34,6 @@ MEASURED_KIND = "valband.measured_spectrum"
 COMMENT_CHARS = ("#", "%", ";", "!")
 _AXES = ("auto", "binding", "kinetic")
 _VAMAS_ID = "VAMAS Surface Chemical Analysis Standard Data Transfer Format"
-
-
-def _ro(a) -> NDArray[np.float64]:
-    a = np.array(a, dtype=np.float64, copy=True)
-    a.setflags(write=False)
-    return a
 
 
 @dataclass(frozen=True, eq=False)
@@ -75,7 +70,7 @@ class MeasuredSpectrum:
     metadata: dict = field(default_factory=dict)
 
     def __post_init__(self) -> None:
-        be, y = _ro(self.binding_energy), _ro(self.intensity)
+        be, y = readonly(self.binding_energy), readonly(self.intensity)
         object.__setattr__(self, "binding_energy", be)
         object.__setattr__(self, "intensity", y)
         if be.ndim != 1 or y.shape != be.shape or be.size < 2:
@@ -94,7 +89,7 @@ class MeasuredSpectrum:
         if unc is None and self.unit == "counts":
             unc = np.sqrt(y)
         if unc is not None:
-            unc = _ro(unc)
+            unc = readonly(unc)
             if unc.shape != y.shape or not np.isfinite(unc).all() or (unc < 0).any():
                 raise InputError("MeasuredSpectrum: uncertainty must be finite, ≥ 0 and match "
                                  "the intensity")

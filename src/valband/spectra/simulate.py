@@ -33,6 +33,7 @@ from dataclasses import dataclass, field
 import numpy as np
 from numpy.typing import NDArray
 
+from valband.arrays import readonly
 from valband.conventions import SHELL_L
 from valband.errors import InputError, SettingsError
 from valband.results.channels import Channel
@@ -58,12 +59,6 @@ MAGIC_ANGLE_DEG = math.degrees(math.acos(1.0 / math.sqrt(3.0)))
 DEFAULT_GEOMETRY = (MAGIC_ANGLE_DEG, "unpolarized")
 SPECTRUM_KIND = "valband.spectrum"
 _POLARIZATIONS = ("unpolarized", "linear")
-
-
-def _ro(a) -> NDArray[np.float64]:
-    a = np.array(a, dtype=np.float64, copy=True)
-    a.setflags(write=False)
-    return a
 
 
 @dataclass(frozen=True, eq=False)
@@ -96,11 +91,11 @@ class Spectrum:
     provenance: dict = field(default_factory=dict)
 
     def __post_init__(self) -> None:
-        object.__setattr__(self, "binding_energy", _ro(self.binding_energy))
-        object.__setattr__(self, "intensity", _ro(self.intensity))
+        object.__setattr__(self, "binding_energy", readonly(self.binding_energy))
+        object.__setattr__(self, "intensity", readonly(self.intensity))
         object.__setattr__(self, "component_labels", tuple(self.component_labels))
         object.__setattr__(self, "components",
-                           _ro(self.components).reshape(len(self.component_labels), -1))
+                           readonly(self.components).reshape(len(self.component_labels), -1))
         n = self.binding_energy.shape
         if self.intensity.shape != n or self.components.shape[1:] != n:
             raise InputError("Spectrum: binding_energy, intensity and components must share "

@@ -13,6 +13,7 @@ import numpy as np
 from ase.data import atomic_numbers, chemical_symbols
 from numpy.typing import NDArray
 
+from valband.arrays import readonly
 from valband.errors import StructureError
 
 __all__ = ["Structure", "MIN_DISTANCE"]
@@ -20,12 +21,6 @@ __all__ = ["Structure", "MIN_DISTANCE"]
 #: Two atoms closer than this (Å) are taken as overlapping: no metal or alloy has
 #: interatomic distances below ~1.5 Å (shortest metallic bonds are ~2.2 Å; common practice).
 MIN_DISTANCE = 1.0
-
-
-def _readonly(a: NDArray, dtype) -> NDArray:
-    out = np.array(a, dtype=dtype, copy=True)
-    out.setflags(write=False)
-    return out
 
 
 @dataclass(frozen=True, eq=False)
@@ -53,8 +48,8 @@ class Structure:
     source: str = ""
 
     def __post_init__(self) -> None:
-        cell = _readonly(self.cell, np.float64)
-        pos = _readonly(self.positions, np.float64)
+        cell = readonly(self.cell, np.float64)
+        pos = readonly(self.positions, np.float64)
         src = self.source or "structure"
         if cell.shape != (3, 3):
             raise StructureError(f"{src}: cell must be 3×3 (lattice vectors as rows), got {cell.shape}")

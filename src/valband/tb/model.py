@@ -27,6 +27,7 @@ from functools import cached_property
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
+from valband.arrays import readonly
 from valband.conventions import SHELL_L, SHELL_ORBITALS, SHELLS, OrbitalLabel
 from valband.errors import InputError, ParameterError
 from valband.structure import Structure, find_neighbours
@@ -42,12 +43,6 @@ _ORBITAL_INDEX = {o: i for i, o in enumerate(o for sh in SHELLS for o in SHELL_O
 #: Largest disagreement (relative to the largest integral of the pair) tolerated between
 #: ``hopping(b, a, r)`` and the reversed ``hopping(a, b, r)``.
 _RECIPROCITY_RTOL = 1e-9
-
-
-def _readonly(a: ArrayLike, dtype) -> NDArray:
-    out = np.array(a, dtype=dtype, copy=True)
-    out.setflags(write=False)
-    return out
 
 
 def canonical_half(
@@ -146,10 +141,10 @@ class TBModel:
         norb = len(self.orbitals)
         n_sites = self.structure.n_sites
         set_ = object.__setattr__
-        set_(self, "onsite", _readonly(self.onsite, np.float64))
+        set_(self, "onsite", readonly(self.onsite, np.float64))
         for name in ("bond_first", "bond_second", "bond_shifts"):
-            set_(self, name, _readonly(getattr(self, name), np.int64))
-        set_(self, "bond_vectors", _readonly(self.bond_vectors, np.float64).reshape(-1, 3))
+            set_(self, name, readonly(getattr(self, name), np.int64))
+        set_(self, "bond_vectors", readonly(self.bond_vectors, np.float64).reshape(-1, 3))
         set_(self, "bond_shifts", self.bond_shifts.reshape(-1, 3))
         if self.onsite.shape != (norb,):
             raise InputError(f"onsite energies must have shape ({norb},), got {self.onsite.shape}")
@@ -174,7 +169,7 @@ class TBModel:
                 raise InputError(f"{what}: {len(blocks)} blocks for {nh} bonds")
             frozen = []
             for b, blk in enumerate(blocks):
-                blk = _readonly(blk, np.float64)
+                blk = readonly(blk, np.float64)
                 want = (sizes[self.bond_first[b]], sizes[self.bond_second[b]])
                 if blk.shape != want:
                     raise InputError(f"{what}[{b}] has shape {blk.shape}, expected {want}")
@@ -307,10 +302,10 @@ class TBModel:
             s = self.bond_overlap + tuple(b.T for b in self.bond_overlap)
         order = np.lexsort((np.linalg.norm(vectors, axis=1), first)) if 2 * nh else np.zeros(0, int)
         return RealSpaceBlocks(
-            first=_readonly(first[order], np.int64),
-            second=_readonly(second[order], np.int64),
-            shifts=_readonly(shifts[order].reshape(-1, 3), np.int64),
-            vectors=_readonly(vectors[order].reshape(-1, 3), np.float64),
+            first=readonly(first[order], np.int64),
+            second=readonly(second[order], np.int64),
+            shifts=readonly(shifts[order].reshape(-1, 3), np.int64),
+            vectors=readonly(vectors[order].reshape(-1, 3), np.float64),
             hamiltonian=tuple(h[i] for i in order),
             overlap=None if s is None else tuple(s[i] for i in order),
             onsite=self.onsite,
