@@ -119,8 +119,12 @@ def test_lorentzian_numba_vs_reference(seed):
     g[rng.random(n) < 0.1] = 0.0
     g[rng.random(n) < 0.1] = 1e-4
     for keep in (True, False):
-        np.testing.assert_allclose(lorentzian_numba(e, y, g, keep),
-                                   lorentzian_reference(e, y, g, keep), rtol=1e-12, atol=1e-14)
+        ref = lorentzian_reference(e, y, g, keep)
+        np.testing.assert_allclose(lorentzian_numba(e, y, g, keep), ref, rtol=1e-12, atol=1e-14)
+        j0 = int(rng.integers(0, n - 1))
+        j1 = int(rng.integers(j0 + 1, n + 1))
+        np.testing.assert_allclose(lorentzian_numba(e, y, g, keep, out_range=(j0, j1)),
+                                   ref[:, j0:j1], rtol=1e-12, atol=1e-14)
 
 
 @pytest.mark.parametrize("seed", [0, 1])

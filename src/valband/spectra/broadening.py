@@ -179,7 +179,7 @@ def lorentzian_reference(energies, values, gamma, keep_area: bool = True) -> NDA
 
 
 @numba.njit(cache=True, parallel=True)
-def _lorentz_kernel(e, yt, g, scale, src, out):  # pragma: no cover - compiled
+def _lorentz_kernel(e, yt, g, scale, src, out, j0):  # pragma: no cover - compiled
     # src: indices of the source points with any value above the skip threshold.
     # K_ji = [atan(u) − atan(v)]/π with u, v = (d ± h/2)/Γ; when 1 + uv > 0 this is
     # atan(x)/π with x = hΓ / (Γ² + d² − h²/4) (one atan per pair), and for x < 1e-3 the
@@ -188,7 +188,8 @@ def _lorentz_kernel(e, yt, g, scale, src, out):  # pragma: no cover - compiled
     nc = yt.shape[1]
     h = (e[n - 1] - e[0]) / (n - 1)
     inv_pi = 1.0 / math.pi
-    for j in numba.prange(n):
+    for jj in numba.prange(out.shape[0]):
+        j = j0 + jj
         ej = e[j]
         acc = np.zeros(nc)
         for q in range(src.size):
@@ -214,11 +215,16 @@ def _lorentz_kernel(e, yt, g, scale, src, out):  # pragma: no cover - compiled
             for c in range(nc):
                 acc[c] += kji * yt[i, c]
         for c in range(nc):
-            out[j, c] = acc[c]
+            out[jj, c] = acc[c]
 
 
-def lorentzian_numba(energies, values, gamma, keep_area: bool = True) -> NDArray[np.float64]:
-    """Energy-dependent Lorentzian broadening, compiled (same result as the reference)."""
+def lorentzian_numba(energies, values, gamma, keep_area: bool = True,
+                     out_range: tuple[int, int] | None = None) -> NDArray[np.float64]:
+    """Energy-dependent Lorentzian broadening, compiled (same result as the reference).
+
+    ``out_range = (j0, j1)`` computes only the output points j0 ≤ j < j1 (every source point
+    still contributes); the result then has j1 − j0 points along the last axis.
+    """
     e = np.ascontiguousarray(energies, dtype=np.float64)
     y = np.asarray(values, dtype=np.float64)
     shape = y.shape
@@ -229,9 +235,13 @@ def lorentzian_numba(energies, values, gamma, keep_area: bool = True) -> NDArray
              else np.ones_like(e))
     peak = float(np.abs(y2).max(initial=0.0))
     src = np.flatnonzero(np.any(np.abs(y2) > SKIP_BELOW * peak, axis=0)).astype(np.int64)
-    out = np.zeros((e.size, y2.shape[0]))
-    _lorentz_kernel(e, np.ascontiguousarray(y2.T), g, np.ascontiguousarray(scale), src, out)
-    return np.ascontiguousarray(out.T).reshape(shape)
+    j0, j1 = (0, e.size) if out_range is None else (int(out_range[0]), int(out_range[1]))
+    if not 0 <= j0 < j1 <= e.size:
+        raise SettingsError(f"out_range {out_range!r}: need 0 ≤ j0 < j1 ≤ {e.size}")
+    out = np.zeros((j1 - j0, y2.shape[0]))
+    _lorentz_kernel(e, np.ascontiguousarray(y2.T), g, np.ascontiguousarray(scale), src, out,
+                    j0)
+    return np.ascontiguousarray(out.T).reshape(*shape[:-1], j1 - j0)
 
 
 def lorentzian_broaden(energies, values, gamma0: float = DEFAULT_GAMMA0_EV,

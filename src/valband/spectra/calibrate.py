@@ -235,9 +235,14 @@ def fit_fermi_edge(be, intensity, counts: bool = True, window=None, temperature:
                             diff_step=1e-6)
     except (ValueError, np.linalg.LinAlgError) as exc:
         raise CalculationError(f"Fermi-edge fit failed: {exc}") from None
-    if not res.success:
-        raise CalculationError(f"Fermi-edge fit did not converge: {res.message}")
     p = res.x
+    if not res.success:
+        if not (e[0] <= p[0] <= e[-1]) or p[2] <= 0 or p[1] > span:
+            # the optimiser wandered off: the window has no edge it can settle on
+            raise SettingsError(f"Fermi-edge fit: no Fermi edge in the window ({e[0]:.6g} to "
+                                f"{e[-1]:.6g} eV) — the fit did not settle ({res.message}); "
+                                "choose a window that spans the edge by at least its width")
+        raise CalculationError(f"Fermi-edge fit did not converge: {res.message}")
     if not (e[0] <= p[0] <= e[-1]) or p[2] <= 0:
         raise CalculationError(f"Fermi-edge fit ended without an edge in the window (E_F = "
                                f"{p[0]:.4g} eV, step height {p[2]:.4g}); narrow the window "
