@@ -45,8 +45,24 @@ def add_arguments(p) -> None:
                    f"vector (linear) and analyser (default magic angle {MAGIC_ANGLE_DEG:.2f})")
     g.add_argument("--polarization", default="unpolarized", choices=["unpolarized", "linear"],
                    help="light polarisation (default unpolarized)")
+    g.add_argument("--inelastic", nargs=2, metavar=("KIND", "VALUE"), default=None,
+                   help="add an inelastic background: 'shirley K' (K in 1/eV, times the area "
+                   "at lower BE) or 'tougaard B' (B in eV², universal cross-section)")
     add_dos_arguments(p)
     add_output_arguments(p, default_out="valband-spectrum")
+
+
+def _inelastic(pair):
+    """(kind, amplitude) from ``--inelastic KIND VALUE``; SettingsError for a non-number."""
+    if pair is None:
+        return None
+    from valband.errors import SettingsError
+
+    try:
+        return pair[0], float(pair[1])
+    except ValueError:
+        raise SettingsError(f"--inelastic {pair[0]} {pair[1]}: the value must be a number "
+                            "(K in 1/eV for shirley, B in eV² for tougaard)") from None
 
 
 def run(args) -> int:
@@ -58,7 +74,7 @@ def run(args) -> int:
     summary, spec, dos = simulate_job(
         model, dos_settings(args), args.out, args.photon_energy, args.temperature,
         args.resolution, tuple(args.lifetime), (args.angle, args.polarization), args.format,
-        progress=not (args.quiet or args.json))
+        progress=not (args.quiet or args.json), inelastic=_inelastic(args.inelastic))
     if args.json:
         print_json(summary)
     elif not args.quiet:

@@ -47,6 +47,8 @@ __all__ = [
     "tougaard_kernel_integral",
     "tougaard_background",
     "linear_background",
+    "shirley_shape",
+    "tougaard_shape",
 ]
 
 #: Tougaard's universal cross-section coefficients, eV² (Tougaard 1988–89; B usually refitted).
@@ -339,3 +341,33 @@ def linear_background(be, intensity, endpoints=None,
     i_hi = end_intensity(e, y, hi, n_average)
     x = np.clip(e, lo, hi)
     return i_lo + (i_hi - i_lo) * (x - lo) / (hi - lo)
+
+
+# --------------------------------------------------------------------------------- model shapes
+def shirley_shape(h: float, peak) -> NDArray[np.float64]:
+    """∫ from the grid start to BE of a *model* peak, on a uniform BE grid of step h (eV).
+
+    Trapezoid rule along the last axis, 0 at the first point. Times an amplitude k (1/eV) this
+    is Shirley's background (proportional to the peak area at lower binding energy) of a
+    simulated peak; unlike :func:`shirley_background` it needs no iteration, because the
+    peak is known.
+    """
+    y = np.asarray(peak, dtype=np.float64)
+    c = np.cumsum(y, axis=-1) * h
+    return c - 0.5 * h * (y + y[..., :1])
+
+
+def tougaard_shape(h: float, peak, C: float = TOUGAARD_C) -> NDArray[np.float64]:
+    """∫_0^∞ T/(C + T²)² P(BE − T) dT of a model peak P on a uniform BE grid of step h (eV).
+
+    Times B (eV²) this is the Tougaard universal-cross-section background (Tougaard 1988) of
+    a simulated peak; the kernel is integrated over each grid bin in closed form and applied as
+    a causal convolution by FFT (losses move intensity to higher BE). Last axis.
+    """
+    y = np.asarray(peak, dtype=np.float64)
+    n = y.shape[-1]
+    edges = (np.arange(n + 1) - 0.5).clip(min=0.0) * h
+    k = np.diff(tougaard_kernel_integral(edges, B=1.0, C=C))
+    nfft = 1 << (2 * n - 1).bit_length()
+    f = np.fft.irfft(np.fft.rfft(y, nfft, axis=-1) * np.fft.rfft(k, nfft), nfft, axis=-1)
+    return f[..., :n]

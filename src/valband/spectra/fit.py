@@ -65,7 +65,7 @@ from scipy.optimize import least_squares, lsq_linear
 
 from valband.errors import CalculationError, InputError, SettingsError
 from valband.results.dos import DOSResult
-from valband.spectra.background import TOUGAARD_C, tougaard_kernel_integral
+from valband.spectra.background import shirley_shape, tougaard_shape
 from valband.spectra.broadening import (
     DEFAULT_A_PER_EV,
     DEFAULT_GAMMA0_EV,
@@ -239,11 +239,6 @@ class _Model:
         self.h = float(full_grid[1] - full_grid[0])
         self._lorentz: dict = {}
         self._cache: dict = {}
-        if background == "tougaard":
-            n = self.grid.size
-            edges = (np.arange(n + 1) - 0.5).clip(min=0.0) * self.h
-            # bin-integrated T/(C+T²)² (B = 1); P(BE − T) summed over T = j·h
-            self._tk = np.diff(tougaard_kernel_integral(edges, B=1.0, C=TOUGAARD_C))
 
     def broadened(self, fwhm: float, g0: float, a: float, per_group: bool = True) -> NDArray:
         """Broadened curves on the output grid: (n_groups, n) or, summed, (1, n); cached.
@@ -274,13 +269,9 @@ class _Model:
     def shape(self, peak: NDArray) -> NDArray:
         """Background shape of the given peak curve(s) on the grid (last axis)."""
         if self.kind == "shirley":
-            c = np.cumsum(peak, axis=-1) * self.h
-            return c - 0.5 * self.h * peak
+            return shirley_shape(self.h, peak)
         if self.kind == "tougaard":
-            n = self.grid.size
-            nfft = 1 << (2 * n - 1).bit_length()
-            f = np.fft.irfft(np.fft.rfft(peak, nfft) * np.fft.rfft(self._tk, nfft), nfft)
-            return f[..., :n]
+            return tougaard_shape(self.h, peak)
         raise AssertionError(self.kind)
 
 

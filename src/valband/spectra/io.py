@@ -1,7 +1,8 @@
 """Files of a simulated spectrum: ``spectrum.csv``, the plot and ``summary.json``.
 
 ``spectrum.csv``: comment lines (``#``), then ``binding_energy_eV,total,<component> …`` with
-one column per component (``Cu0:d``), binding energy ascending, intensities in
+one column per component (``Cu0:d``) and, when requested, ``inelastic_background`` last
+(the columns after the first sum to ``total``); binding energy ascending, intensities in
 Mb·states/eV per cell.
 """
 
@@ -27,6 +28,9 @@ def write_spectrum_csv(path: str | Path, spectrum: Spectrum) -> Path:
     ]
     header = ["binding_energy_eV", "total", *spectrum.component_names]
     cols = [spectrum.binding_energy, spectrum.intensity, *spectrum.components]
+    if spectrum.background is not None:
+        header.append("inelastic_background")
+        cols.append(spectrum.background)
     return write_csv(path, header, cols, comments)
 
 
@@ -51,7 +55,7 @@ def spectrum_summary(spectrum: Spectrum) -> dict:
 
 
 def simulate_job(model, dos_settings, out_dir, photon_energy, temperature, gaussian_fwhm,
-                 lorentz, geometry, fmt: str = "png", progress: bool = False):
+                 lorentz, geometry, fmt: str = "png", progress: bool = False, inelastic=None):
     """DOS → spectrum; writes ``spectrum.csv``, ``spectrum.<fmt>``, ``summary.json``.
 
     Returns ``(summary, spectrum, dos)``; with ``out_dir=None`` nothing is written.
@@ -62,7 +66,8 @@ def simulate_job(model, dos_settings, out_dir, photon_energy, temperature, gauss
 
     dos = compute_dos(model, dos_settings, progress=progress)
     spec = simulate_spectrum(dos, photon_energy, temperature=temperature,
-                             gaussian_fwhm=gaussian_fwhm, lorentz=lorentz, geometry=geometry)
+                             gaussian_fwhm=gaussian_fwhm, lorentz=lorentz, geometry=geometry,
+                             inelastic=inelastic)
     files = {}
     if out_dir is not None:
         out = prepare_out_dir(out_dir)

@@ -28,6 +28,8 @@ def plot_spectrum(ax, spectrum: Spectrum, title: str | None = None) -> None:
             ax.plot(be, spectrum.select(element=el, shell=sh), lw=1.2,
                     color=_COLOURS[k % len(_COLOURS)], ls=_STYLE.get(sh, "-."),
                     label=f"{el} {sh}")
+    if spectrum.background is not None:
+        ax.plot(be, spectrum.background, color="0.45", lw=1.0, ls="--", label="inelastic")
     ax.axvline(0.0, color="k", lw=0.7, ls="-.")
     ax.set_xlim(be[-1], be[0])  # decreasing to the right
     ax.set_ylim(bottom=0)

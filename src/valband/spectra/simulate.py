@@ -13,7 +13,8 @@ photoionization cross section (Mb) of the channel's element and shell at hν
 (layer-resolved DOS, :func:`valband.spectra.imfp.depth_weights`), D_c the partial DOS
 (states/eV/cell) and f the Fermi–Dirac occupation; then the lifetime Lorentzian and the
 instrument Gaussian (:mod:`valband.spectra.broadening`). Every channel is broadened on its own
-and kept as a component, so the components sum to the total exactly.
+and kept as a component, so the components (plus the optional inelastic background, kept as
+its own curve) sum to the total exactly.
 
 Intensity unit: Mb · states / eV per cell (σ in Mb times DOS in states/eV/cell, dimensionless
 angular and depth factors) — proportional to counts, with the analyser transmission, flux and
@@ -71,9 +72,11 @@ class Spectrum:
         BE = E_F − E, **ascending** (E_F at BE = 0, occupied states at BE > 0). Plots draw it
         decreasing to the right.
     intensity : (n_e,) float64, Mb · states / eV per cell
-        Total spectrum, the sum of ``components``.
+        Total spectrum: the sum of ``components`` plus ``background``.
     components : (n_c, n_e) float64, same unit
         One broadened curve per DOS channel (site × shell, or site × orbital).
+    background : (n_e,) float64 or None, same unit
+        The optional inelastic background (``inelastic`` of :func:`simulate_spectrum`).
     component_labels : tuple of Channel
     settings : dict
         Photon energy (eV) and source name, temperature (K), Gaussian FWHM (eV), lifetime law
@@ -89,9 +92,14 @@ class Spectrum:
     component_labels: tuple[Channel, ...]
     settings: dict = field(default_factory=dict)
     provenance: dict = field(default_factory=dict)
+    background: NDArray[np.float64] | None = None
 
     def __post_init__(self) -> None:
         object.__setattr__(self, "binding_energy", readonly(self.binding_energy))
+        if self.background is not None:
+            object.__setattr__(self, "background", readonly(self.background))
+            if self.background.shape != self.binding_energy.shape:
+                raise InputError("Spectrum: background must share the energy axis")
         object.__setattr__(self, "intensity", readonly(self.intensity))
         object.__setattr__(self, "component_labels", tuple(self.component_labels))
         object.__setattr__(self, "components",
@@ -127,6 +135,7 @@ class Spectrum:
             "components": self.components.tolist(),
             "component_labels": [c.to_dict() for c in self.component_labels],
             "intensity_unit": "Mb states/eV per cell",
+            "background": None if self.background is None else self.background.tolist(),
             "settings": self.settings,
             "provenance": self.provenance,
         }
@@ -145,6 +154,8 @@ class Spectrum:
                 component_labels=tuple(Channel.from_dict(c) for c in d["component_labels"]),
                 settings=dict(d.get("settings", {})),
                 provenance=dict(d.get("provenance", {})),
+                background=None if d.get("background") is None
+                else np.array(d["background"], dtype=np.float64),
             )
         except (KeyError, TypeError, ValueError) as exc:
             raise InputError(f"spectrum dictionary: malformed ({type(exc).__name__}: {exc})") \
@@ -264,7 +275,8 @@ def simulate_spectrum(dos: DOSResult, photon_energy, temperature: float = 300.0,
                       gaussian_fwhm: float = DEFAULT_GAUSSIAN_FWHM_EV,
                       lorentz: tuple[float, float] = (DEFAULT_GAMMA0_EV, DEFAULT_A_PER_EV),
                       geometry: tuple[float, str] = DEFAULT_GEOMETRY,
-                      layer_weights=None, keep_area: bool = True) -> Spectrum:
+                      layer_weights=None, keep_area: bool = True,
+                      inelastic: tuple[str, float] | None = None) -> Spectrum:
     """Simulate a valence-band photoemission spectrum (model in the module docstring).
 
     Parameters
@@ -284,6 +296,13 @@ def simulate_spectrum(dos: DOSResult, photon_energy, temperature: float = 300.0,
         Depth weights of the sites (e.g. :func:`~valband.spectra.imfp.depth_weights`); None: 1.
     keep_area : bool
         Broadening keeps the area on the grid (see :mod:`valband.spectra.broadening`).
+    inelastic : None, ("shirley", k) or ("tougaard", B)
+        Optional inelastic background added to the total and kept as ``background``: k (1/eV)
+        times the spectrum's area at lower binding energy
+        (:func:`~valband.spectra.background.shirley_shape`), or B (eV²) times the spectrum
+        convolved with the universal loss shape T/(C + T²)²
+        (:func:`~valband.spectra.background.tougaard_shape`, Tougaard 1988; a typical B for
+        metals is ~3000 eV², common practice).
 
     Returns
     -------
@@ -321,6 +340,7 @@ def simulate_spectrum(dos: DOSResult, photon_energy, temperature: float = 300.0,
     raw = raw[:, ::-1]
     comp = lorentzian_broaden(be, raw, g0, a, keep_area=keep_area, origin=0.0)
     comp = gaussian_broaden(be, comp, fwhm, keep_area=keep_area)
+    background, inel = _inelastic(inelastic, float(be[1] - be[0]), comp.sum(axis=0))
     settings = {
         "photon_energy_eV": hv,
         "photon_source": source,
@@ -334,11 +354,41 @@ def simulate_spectrum(dos: DOSResult, photon_energy, temperature: float = 300.0,
         "layer_weights": {str(s): w for s, w in site_w.items()} if layer_weights is not None
         else None,
         "keep_area": bool(keep_area),
+        "inelastic_background": inel,
         "intensity_unit": "Mb states/eV per cell",
         "binding_energy_order": "ascending",
     }
     provenance = {"dos_provenance": dos.provenance, "dos_settings": dos.settings,
                   "fermi_level_eV": dos.fermi_level, "n_electrons": dos.n_electrons}
-    return Spectrum(binding_energy=be, intensity=comp.sum(axis=0), components=comp,
+    total = comp.sum(axis=0) if background is None else comp.sum(axis=0) + background
+    return Spectrum(binding_energy=be, intensity=total, components=comp,
                     component_labels=dos.channel_labels, settings=settings,
-                    provenance=provenance)
+                    provenance=provenance, background=background)
+
+
+_INELASTIC = {"shirley": ("k", "1/eV"), "tougaard": ("B", "eV^2")}
+
+
+def _inelastic(inelastic, h: float, peak: NDArray) -> tuple[NDArray | None, dict | None]:
+    """Build the optional inelastic background of :func:`simulate_spectrum` and its record."""
+    if inelastic is None:
+        return None, None
+    from valband.spectra.background import TOUGAARD_C, shirley_shape, tougaard_shape
+
+    try:
+        kind, amp = inelastic
+        amp = float(amp)
+    except (TypeError, ValueError):
+        raise SettingsError(f"inelastic {inelastic!r}: expected (kind, amplitude) with kind "
+                            f"one of {', '.join(_INELASTIC)}") from None
+    if kind not in _INELASTIC:
+        raise SettingsError(f"inelastic background {kind!r}: accepted {', '.join(_INELASTIC)}")
+    name, unit = _INELASTIC[kind]
+    if not math.isfinite(amp) or amp < 0:
+        raise SettingsError(f"inelastic {kind} amplitude {name} = {amp!r} {unit}: must be "
+                            "finite and ≥ 0")
+    shape = shirley_shape(h, peak) if kind == "shirley" else tougaard_shape(h, peak)
+    record = {"kind": kind, name: amp, "unit": unit}
+    if kind == "tougaard":
+        record["C_eV2"] = TOUGAARD_C
+    return amp * shape, record
