@@ -5,7 +5,6 @@ from __future__ import annotations
 from pathlib import Path
 
 from valband.errors import StructureError
-from valband.structure.build import LATTICES, build_structure
 from valband.structure.record import Structure
 
 __all__ = ["read_structure", "load_structure"]
@@ -40,14 +39,35 @@ def read_structure(path: str | Path, index: int = -1, format: str | None = None)
 
 
 def load_structure(text: str | Path) -> Structure:
-    """A structure from a file path or a build spec (``"Pd fcc"``), whichever ``text`` is."""
+    """Read a structure from a file path or build it from a spec, whichever ``text`` is.
+
+    Specs: the bulk grammar (``"Pd fcc"``) and the extended forms of
+    :mod:`valband.structure.specs` (ordered, random, SQS, slab, overlayer, strain).
+    """
+    return load_structure_with_info(text)[0]
+
+
+def load_structure_with_info(text: str | Path) -> tuple[Structure, dict]:
+    """Like :func:`load_structure`, plus the spec's info (layers, groups, seed; kind "file")."""
+    from valband.structure.specs import build_from_spec
+
     p = Path(text)
     if p.exists():
-        return read_structure(p)
+        return read_structure(p), {"kind": "file", "path": str(p)}
     tokens = str(text).split()
-    if len(tokens) >= 2 and tokens[1].lower() in LATTICES:
-        return build_structure(str(text))
-    raise StructureError(
-        f"{text!r}: neither an existing structure file nor a build spec; "
-        "accepted: a file ASE reads, or 'ELEMENT LATTICE [a]' such as 'Cu fcc 3.61'"
-    )
+    if len(tokens) == 1 and (p.suffix or "/" in str(text)):
+        raise StructureError(
+            f"{text!r}: neither an existing structure file (no such file) nor a build spec; "
+            "accepted: a file ASE reads, or a spec such as "
+            "'Cu fcc 3.61', 'Cu3Pd L12' or 'slab Pt fcc111 layers=5'"
+        )
+    if len(tokens) < 2:
+        raise StructureError(
+            f"{text!r}: neither an existing structure file nor a build spec; "
+            "accepted: a file ASE reads, or 'ELEMENT LATTICE [a]' such as 'Cu fcc 3.61'"
+        )
+    try:
+        return build_from_spec(str(text))
+    except StructureError as exc:
+        raise StructureError(f"{text!r} is neither an existing structure file nor a build spec "
+                             f"that valband understands: {exc}") from None
