@@ -33,7 +33,15 @@ def run(args) -> int:
         for i, r in enumerate(summary["screening"], 1):
             print(f"{i:4d}  {r['name']:9s}  {r['d_band_centre_eV']:18.3f}  "
                   f"{r['d_band_width_eV']:10.3f}  {r['d_filling']:7.3f}")
+        fitted = [r for r in summary["screening"] if r.get("fit_shift_eV") is not None]
+        if fitted:
+            print("fits to the invented Al Kα measurements (demo-measurements):")
+            for r in fitted:
+                print(f"  {r['name']:9s} shift {r['fit_shift_eV']:+.3f} eV, χ²_red "
+                      f"{r['fit_reduced_chi2']:.3g}, measured VB centre "
+                      f"{r['measured_band_centre_eV']:+.3f} eV")
         if summary.get("parameter_set_caution"):
             print(summary["parameter_set_caution"])
-        print(f"results in {args.out}/ (summary.json, screening.csv, one folder per candidate)")
+        print(f"results in {args.out}/ (report.html, figure.png/.pdf, summary.json, "
+              "screening.csv, one folder per candidate)")
     return 0

@@ -77,11 +77,12 @@ def compare_job(model, dos_settings, measured: MeasuredSpectrum, out_dir, *,
                 photon_energy=None, temperature: float = 300.0, geometry=None,
                 background: str = "shirley", free=None, initial=None, shift_range=None,
                 window=None, band_window=None, calibrate_window=None, fmt: str = "png",
-                progress: bool = False):
+                progress: bool = False, dos=None):
     """DOS → fit against ``measured``; writes the files of the module docstring.
 
     ``calibrate_window`` (BE_low, BE_high) runs the Fermi-edge calibration first; then the
-    default free parameters leave out ``shift`` (the Fermi level is known). Returns
+    default free parameters leave out ``shift`` (the Fermi level is known). A ``dos`` already
+    computed with ``dos_settings`` may be passed to skip the computation. Returns
     ``(summary, fit, dos, calibration_record_or_None)``; ``out_dir=None`` writes nothing.
     """
     from valband.spectra.simulate import DEFAULT_GEOMETRY
@@ -93,7 +94,8 @@ def compare_job(model, dos_settings, measured: MeasuredSpectrum, out_dir, *,
         measured, calibration = calibrate_measured(measured, calibrate_window, temperature)
     if free is None:
         free = tuple(n for n in DEFAULT_FREE if not (calibration and n == "shift"))
-    dos = compute_dos(model, dos_settings, progress=progress)
+    if dos is None:
+        dos = compute_dos(model, dos_settings, progress=progress)
     kwargs = {} if shift_range is None else {"shift_range": shift_range}
     fit = fit_spectrum(measured, dos, photon_energy, temperature=temperature,
                        geometry=geometry or DEFAULT_GEOMETRY, background=background, free=free,

@@ -55,16 +55,19 @@ def spectrum_summary(spectrum: Spectrum) -> dict:
 
 
 def simulate_job(model, dos_settings, out_dir, photon_energy, temperature, gaussian_fwhm,
-                 lorentz, geometry, fmt: str = "png", progress: bool = False, inelastic=None):
+                 lorentz, geometry, fmt: str = "png", progress: bool = False, inelastic=None,
+                 dos=None):
     """DOS → spectrum; writes ``spectrum.csv``, ``spectrum.<fmt>``, ``summary.json``.
 
-    Returns ``(summary, spectrum, dos)``; with ``out_dir=None`` nothing is written.
+    Returns ``(summary, spectrum, dos)``; with ``out_dir=None`` nothing is written. A ``dos``
+    already computed with ``dos_settings`` may be passed to skip the computation.
     """
     from valband.spectra.simulate import simulate_spectrum
     from valband.workflows import compute_dos
     from valband.writers import summary_of, write_summary
 
-    dos = compute_dos(model, dos_settings, progress=progress)
+    if dos is None:
+        dos = compute_dos(model, dos_settings, progress=progress)
     spec = simulate_spectrum(dos, photon_energy, temperature=temperature,
                              gaussian_fwhm=gaussian_fwhm, lorentz=lorentz, geometry=geometry,
                              inelastic=inelastic)
