@@ -17,11 +17,11 @@ COMMANDS: dict[str, tuple[str, str]] = {
     "dos": ("valband.cli.cmd_dos", "total and partial DOS, Fermi level and d-band descriptors"),
     "bands": ("valband.cli.cmd_bands", "band structure along a path, with orbital character"),
     "describe": ("valband.cli.cmd_describe", "d-band descriptors only (table or JSON)"),
-    "demo": ("valband.cli.cmd_demo", "run the bundled (invented) demo scenario end to end"),
-    "xsec": ("valband.cli.cmd_xsec", "valence-subshell photoionization cross sections and β at a photon energy"),
     "simulate": ("valband.cli.cmd_simulate", "simulated valence-band photoemission spectrum at a photon energy"),
-    "report": ("valband.cli.cmd_report", "self-contained HTML report of a run folder, and its main figure for papers"),
     "compare": ("valband.cli.cmd_compare", "fit the simulated spectrum to a measured one (overlay, residuals, band centre)"),
+    "xsec": ("valband.cli.cmd_xsec", "valence-subshell photoionization cross sections and β at a photon energy"),
+    "report": ("valband.cli.cmd_report", "self-contained HTML report of a run folder, and its main figure for papers"),
+    "demo": ("valband.cli.cmd_demo", "run the bundled (invented) demo scenario end to end"),
 }
 
 

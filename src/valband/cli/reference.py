@@ -1,0 +1,53 @@
+"""The command reference, generated from the CLI's own ``--help`` so that it cannot drift.
+
+``python -m valband.cli.reference > docs/commands.md`` regenerates ``docs/commands.md``; a test
+checks the committed file against this output (exactly when the Python minor version is the
+one that generated it — argparse's layout changes between versions — and otherwise option by
+option).
+"""
+
+from __future__ import annotations
+
+import os
+import sys
+
+__all__ = ["reference_markdown", "WIDTH"]
+
+#: Terminal width the help text is wrapped to.
+WIDTH = 100
+
+_EXIT_CODES = """\
+## Exit codes
+
+| code | meaning |
+|---|---|
+| 0 | success |
+| 1 | an input or calculation error, reported in one line on stderr (`--debug` shows the traceback) |
+| 2 | a command-line usage error (unknown option, missing argument) or no command given |
+| 130 | interrupted (Ctrl-C) |
+"""
+
+
+def reference_markdown() -> str:
+    """The whole reference as Markdown: ``valband --help`` and each command's ``--help``."""
+    os.environ["COLUMNS"] = str(WIDTH)
+    from valband.cli.main import COMMANDS, build_parser
+
+    parser = build_parser()
+    sub = next(a for a in parser._actions if a.__class__.__name__ == "_SubParsersAction")
+    v = sys.version_info
+    parts = ["# valband command reference", "",
+             "Generated from the program's own `--help` by `python -m valband.cli.reference` "
+             f"(Python {v.major}.{v.minor}); do not edit by hand.", "",
+             "Every command reads a structure (file or spec) and writes its files into `--out`; "
+             "energies are in eV, lengths in Å.", "",
+             "## valband", "", "```text", parser.format_help().rstrip(), "```", ""]
+    for name in COMMANDS:
+        parts += [f"## valband {name}", "", "```text",
+                  sub.choices[name].format_help().rstrip(), "```", ""]
+    parts.append(_EXIT_CODES)
+    return "\n".join(parts)
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.stdout.write(reference_markdown())
