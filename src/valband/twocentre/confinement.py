@@ -47,8 +47,10 @@ import valband
 from valband.arrays import readonly
 from valband.atom.configurations import (
     L_LETTERS,
+    check_electron_count,
     format_configuration,
     ground_state_configuration,
+    parse_configuration,
     resolve_element,
 )
 from valband.atom.grid import RadialGrid, hartree_potential, make_grid
@@ -84,6 +86,9 @@ WAVEFUNCTION_R0_FACTOR: float = 2.0
 DENSITY_R0_FACTOR: float = 2.0
 #: Exponent of the confining potential.
 DEFAULT_POWER: float = 2.0
+#: Rules for the atoms' configuration: "solid" (d block: d^(n-1) s^1, as in the metal) or
+#: "ground" (the neutral ground state); any other text is an explicit configuration.
+CONFIGURATION_RULES: tuple[str, ...] = ("solid", "ground")
 #: Outer radius (bohr) of the free-atom grid that gives the onsite energies.
 FREE_ATOM_R_MAX: float = 100.0
 
@@ -328,11 +333,30 @@ def _outer_lobe_positive(u: NDArray[np.float64]) -> NDArray[np.float64]:
     return -u if u[big[-1]] < 0 else u
 
 
-def _configuration(z: int, levels: dict[str, tuple[int, int]]):
-    cfg = {(n, l): f for n, l, f in ground_state_configuration(z)}  # noqa: E741
+def _configuration(z: int, levels: dict[str, tuple[int, int]], rule: str = "solid"):
+    """Configuration of the atoms: ``rule`` "solid", "ground" or an explicit text form."""
+    if rule not in CONFIGURATION_RULES:
+        try:
+            given = parse_configuration(rule)
+        except InputError as exc:
+            raise SettingsError(
+                f"configuration {rule!r}: {exc}; accepted: "
+                + ", ".join(repr(r) for r in CONFIGURATION_RULES)
+                + " or a configuration such as '[Ar] 3d9 4s1'"
+            ) from None
+        check_electron_count(given, z, 0.0)
+        cfg = {(n, l): f for n, l, f in given}  # noqa: E741
+    else:
+        cfg = {(n, l): f for n, l, f in ground_state_configuration(z)}  # noqa: E741
+        s_level, d_level = levels.get("s"), levels.get("d")
+        if rule == "solid" and z in _D_BLOCK and s_level and d_level:
+            n_sd = cfg.get(s_level, 0.0) + cfg.get(d_level, 0.0)
+            if n_sd <= 11.0:  # not the Zn group (d10 s2 stays)
+                cfg[s_level], cfg[d_level] = 1.0, n_sd - 1.0
     for n, l in levels.values():  # noqa: E741
         cfg.setdefault((n, l), 0.0)
-    return tuple((n, l, cfg[n, l]) for n, l in sorted(cfg))  # noqa: E741
+    return tuple((n, l, cfg[n, l]) for n, l in sorted(cfg) if cfg[n, l] > 0 or (n, l) in
+                 levels.values())  # noqa: E741
 
 
 def confined_atom(
@@ -345,6 +369,7 @@ def confined_atom(
     r0_density: float | None = None,
     shells: tuple[str, ...] | None = None,
     grid: RadialGrid | None = None,
+    configuration: str = "solid",
 ) -> ConfinedAtom:
     """Confined valence orbitals, density, neutral-atom potential and onsite energies.
 
@@ -402,7 +427,7 @@ def confined_atom(
                 + ", ".join(levels)
             )
         per_shell[sh] = _check_r0(val, f"shell_r0[{sh!r}]")
-    cfg = _configuration(z, levels)
+    cfg = _configuration(z, levels, configuration)
     g = grid if grid is not None else make_grid(z)
 
     runs: dict[float, AtomResult] = {}
