@@ -21,6 +21,7 @@ HERE = Path(__file__).resolve().parent
 
 
 def main() -> None:
+    """Parse the options, compute, print and plot."""
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--mesh", type=int, default=24, help="k-points per reciprocal vector")
     ap.add_argument("--out", default="cu3pd_dos.png", help="figure file (PNG or SVG)")

@@ -8,7 +8,8 @@ import sys
 import pytest
 
 
-@pytest.mark.parametrize("script", ["dband_of_an_alloy.py"])
+@pytest.mark.parametrize("script", ["dband_of_an_alloy.py", "compare_with_measurement.py",
+                                    "composition_scan.py", "surface_layer.py"])
 def test_example_runs(repo_root, tmp_path, script):
     out = tmp_path / "fig.png"
     res = subprocess.run([sys.executable, str(repo_root / "examples" / script), "--mesh", "6",
