@@ -34,6 +34,37 @@ def test_d_subshell_against_xraylib(element, photon_ev):
     assert d.sigma_mb == pytest.approx(ref, rel=0.15)
 
 
+#: Closed d10 s2 atoms of the three transition rows, whose xraylib d-subshell values are smooth
+#: in Z up to 8 keV (unlike those of Cu, Rh, Pd, Ag, Ir, Pt, Au there; DEVELOPERS.md).
+CLOSED_D_SHELLS = {"Zn": ("M4", "M5"), "Cd": ("N4", "N5"), "Hg": ("O4", "O5")}
+
+
+@pytest.mark.parametrize("element", sorted(CLOSED_D_SHELLS))
+@pytest.mark.parametrize("photon_ev", [5900.0, 8000.0])
+def test_d_subshell_against_xraylib_at_haxpes_energies(element, photon_ev):
+    # External reference: xraylib 4.3.0 partial cross sections, within 25 % at 5.9 and 8 keV
+    # (issue requirement), for the closed-shell atoms where xraylib's own values are smooth in
+    # Z. For Cu, Pd, Ag, Pt, Au xraylib's per-electron d values at 8 keV jump by factors 3–16
+    # between neighbours (e.g. Ni 0.71, Cu 0.28, Zn 1.57 µMb), so they cannot serve as a
+    # reference there; smoothness of ours is checked below instead.
+    xrl = pytest.importorskip("xraylib")
+    d = next(x for x in valence_cross_sections(element, photon_ev) if x.l == 2)
+    ref = _xraylib_subshell_mb(xrl, element, CLOSED_D_SHELLS[element], photon_ev)
+    assert d.sigma_mb == pytest.approx(ref, rel=0.25)
+
+
+@pytest.mark.parametrize("row", [("Co", "Ni", "Cu", "Zn"), ("Rh", "Pd", "Ag", "Cd"),
+                                 ("Ir", "Pt", "Au", "Hg")])
+def test_haxpes_d_cross_section_per_electron_grows_smoothly_along_a_row(row):
+    # Physics (common practice): at a photon energy far above the d threshold the per-electron
+    # cross section grows with Z along a transition row (the d orbital contracts), without
+    # jumps — successive ratios between 1 and 1.6.
+    per_e = [next(x for x in valence_cross_sections(el, 8000.0) if x.l == 2)
+             .sigma_per_electron_mb for el in row]
+    ratios = [b / a for a, b in zip(per_e, per_e[1:], strict=False)]
+    assert all(1.0 < r < 1.6 for r in ratios), dict(zip(row[1:], ratios, strict=True))
+
+
 @pytest.mark.parametrize("element", ["Cu", "Ag", "Au"])
 def test_d_to_s_ratio_falls_towards_haxpes(element):
     # Common practice (HAXPES): the per-electron s/d cross-section ratio grows with photon
