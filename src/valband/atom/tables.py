@@ -103,7 +103,10 @@ REFINE_BETA_TOL = 0.02
 REFINE_LEVELS = 3
 
 #: Elements with shipped tables (those of the shipped parameter sets), scalar-relativistic.
-SHIPPED_ELEMENTS: tuple[str, ...] = ("Al", "Fe", "Ni", "Cu", "Pd", "Ag", "Pt", "Au")
+SHIPPED_ELEMENTS: tuple[str, ...] = (
+    "Al", "Fe", "Co", "Ni", "Cu", "Zn", "Ga", "Ru", "Rh", "Pd", "Ag", "In", "Sn", "Os", "Ir",
+    "Pt", "Au",
+)  # fmt: skip
 
 #: Laboratory photon sources (eV); common practice (standard line energies of lab XPS/UPS/HAXPES).
 PHOTON_SOURCES: dict[str, float] = {

@@ -11,7 +11,13 @@ from valband.cli.cmd_simulate import (
     DEFAULT_GAUSSIAN_FWHM_EV,
     MAGIC_ANGLE_DEG,
 )
-from valband.cli.common import add_dos_arguments, add_output_arguments, dos_settings, print_json
+from valband.cli.common import (
+    add_depth_arguments,
+    add_dos_arguments,
+    add_output_arguments,
+    dos_settings,
+    print_json,
+)
 
 __all__ = ["add_arguments", "run"]
 
@@ -70,6 +76,7 @@ def add_arguments(p) -> None:
                    help=f"source–analyser angle in degrees (default {MAGIC_ANGLE_DEG:.2f})")
     g.add_argument("--polarization", default="unpolarized", choices=["unpolarized", "linear"],
                    help="light polarisation (default unpolarized)")
+    add_depth_arguments(g)
     f = p.add_argument_group("fit")
     f.add_argument("--background", default="shirley", choices=BACKGROUNDS,
                    help="background fitted with the model (default shirley)")
@@ -95,7 +102,7 @@ def add_arguments(p) -> None:
 def run(args) -> int:
     """Read the measurement, compute the DOS, fit, write the files, print."""
     from valband.atom.tables import photon_energy_of
-    from valband.cli.common import load_model
+    from valband.cli.common import depth_weights_of, load_model_with_info
     from valband.spectra.compare import compare_job
     from valband.spectra.measured import read_spectrum
 
@@ -105,7 +112,9 @@ def run(args) -> int:
         block = int(block)
     measured = read_spectrum(args.measured, axis=args.axis, photon_energy=hv,
                              work_function=args.work_function, block=block)
-    model = load_model(args)
+    model, info = load_model_with_info(args)
+    weights, record = depth_weights_of(args, model, info,
+                                       hv if hv is not None else measured.photon_energy)
     free = args.free
     if args.fix:
         base = free if free is not None else tuple(
@@ -120,7 +129,8 @@ def run(args) -> int:
         shift_range=tuple(args.shift_range), window=args.fit_window,
         band_window=args.band_window,
         calibrate_window=tuple(args.edge_window) if args.calibrate_edge else None,
-        fmt=args.format, progress=not (args.quiet or args.json))
+        fmt=args.format, progress=not (args.quiet or args.json), layer_weights=weights,
+        depth_record=record)
     if args.json:
         print_json(summary)
     elif not args.quiet:

@@ -5,6 +5,7 @@ from __future__ import annotations
 import sys
 
 from valband.cli.common import (
+    add_depth_arguments,
     add_dos_arguments,
     add_model_arguments,
     add_output_arguments,
@@ -48,6 +49,7 @@ def add_arguments(p) -> None:
     g.add_argument("--inelastic", nargs=2, metavar=("KIND", "VALUE"), default=None,
                    help="add an inelastic background: 'shirley K' (K in 1/eV, times the area "
                    "at lower BE) or 'tougaard B' (B in eV², universal cross-section)")
+    add_depth_arguments(g)
     add_dos_arguments(p)
     add_output_arguments(p, default_out="valband-spectrum")
 
@@ -67,14 +69,16 @@ def _inelastic(pair):
 
 def run(args) -> int:
     """Compute the DOS and the spectrum, write the files, print."""
-    from valband.cli.common import load_model
+    from valband.cli.common import depth_weights_of, load_model_with_info
     from valband.spectra.io import simulate_job
 
-    model = load_model(args)
+    model, info = load_model_with_info(args)
+    weights, record = depth_weights_of(args, model, info, args.photon_energy)
     summary, spec, dos = simulate_job(
         model, dos_settings(args), args.out, args.photon_energy, args.temperature,
         args.resolution, tuple(args.lifetime), (args.angle, args.polarization), args.format,
-        progress=not (args.quiet or args.json), inelastic=_inelastic(args.inelastic))
+        progress=not (args.quiet or args.json), inelastic=_inelastic(args.inelastic),
+        layer_weights=weights, depth_record=record)
     if args.json:
         print_json(summary)
     elif not args.quiet:

@@ -7,7 +7,8 @@ import sys
 
 __all__ = [
     "add_model_arguments", "add_dos_arguments", "add_output_arguments",
-    "load_model", "dos_settings", "print_json", "window_of",
+    "load_model", "load_model_with_info", "add_depth_arguments", "depth_weights_of",
+    "dos_settings", "print_json", "window_of",
 ]
 
 DEFAULT_PARAMS = "harrison-universal"
@@ -58,13 +59,45 @@ def add_output_arguments(p: argparse.ArgumentParser, default_out: str | None) ->
 
 def load_model(args):
     """Structure + parameter set → model (the expensive imports happen here)."""
+    return load_model_with_info(args)[0]
+
+
+def load_model_with_info(args):
+    """Structure + parameter set → (model, spec info of the structure: layers, seed, …)."""
     from valband.params import load_parameter_set
-    from valband.structure import load_structure
+    from valband.structure import load_structure_with_info
     from valband.tb import build_model
 
-    structure = load_structure(args.structure)
+    structure, info = load_structure_with_info(args.structure)
     params = load_parameter_set(args.params)
-    return build_model(structure, params)
+    return build_model(structure, params), info
+
+
+def add_depth_arguments(g) -> None:
+    """--depth-weighting and --emission-angle (slab and overlayer structures)."""
+    g.add_argument("--depth-weighting", default=None, metavar="LAMBDA|auto",
+                   help="weight each site of a slab by exp(-z/(λ cos θ)), z its depth below the "
+                   "top surface: λ in Å, or 'auto' for TPP-2M of the slab's main element "
+                   "(default: no depth weighting)")
+    g.add_argument("--emission-angle", type=float, default=0.0, metavar="DEG",
+                   help="emission angle from the surface normal for the depth weights, degrees "
+                   "(default 0)")
+
+
+def depth_weights_of(args, model, info, photon_energy):
+    """(layer_weights, record) from the depth options, or (None, None) without them."""
+    if args.depth_weighting is None:
+        return None, None
+    from valband.atom.tables import photon_energy_of
+    from valband.spectra.depth import slab_depth_weights
+
+    lam = args.depth_weighting
+    try:
+        lam = float(lam)
+    except ValueError:  # "auto", or a word that slab_depth_weights rejects by name
+        pass
+    return slab_depth_weights(model.structure, info, photon_energy_of(photon_energy), lam,
+                              args.emission_angle)
 
 
 def dos_settings(args):

@@ -77,7 +77,8 @@ def compare_job(model, dos_settings, measured: MeasuredSpectrum, out_dir, *,
                 photon_energy=None, temperature: float = 300.0, geometry=None,
                 background: str = "shirley", free=None, initial=None, shift_range=None,
                 window=None, band_window=None, calibrate_window=None, fmt: str = "png",
-                progress: bool = False, dos=None):
+                progress: bool = False, dos=None, layer_weights=None,
+                depth_record: dict | None = None):
     """DOS → fit against ``measured``; writes the files of the module docstring.
 
     ``calibrate_window`` (BE_low, BE_high) runs the Fermi-edge calibration first; then the
@@ -99,7 +100,8 @@ def compare_job(model, dos_settings, measured: MeasuredSpectrum, out_dir, *,
     kwargs = {} if shift_range is None else {"shift_range": shift_range}
     fit = fit_spectrum(measured, dos, photon_energy, temperature=temperature,
                        geometry=geometry or DEFAULT_GEOMETRY, background=background, free=free,
-                       initial=initial, window=window, band_window=band_window, **kwargs)
+                       initial=initial, window=window, band_window=band_window,
+                       layer_weights=layer_weights, **kwargs)
     files = {}
     if out_dir is not None:
         out = prepare_out_dir(out_dir)
@@ -120,7 +122,8 @@ def compare_job(model, dos_settings, measured: MeasuredSpectrum, out_dir, *,
                       "reader": {k: v for k, v in measured.metadata.items()
                                  if k in ("axis", "axis_from", "work_function_eV", "conversion")}}
     summary = summary_of("compare", dos, extra={"fit": fit.summary(), "measured": measured_block,
-                                                "calibration": calibration},
+                                                "calibration": calibration,
+                                                "depth_weighting": depth_record},
                          files=files or None)
     if out_dir is not None:
         write_summary(Path(out_dir) / "summary.json", summary)
