@@ -89,9 +89,21 @@ DEFAULT_POWER: float = 2.0
 #: Rules for the atoms' configuration: "solid" (d block: d^(n-1) s^1, as in the metal) or
 #: "ground" (the neutral ground state); any other text is an explicit configuration.
 CONFIGURATION_RULES: tuple[str, ...] = ("solid", "ground")
+#: Onsite-energy rules: "eigenvalue" (the free-atom eigenvalue of the level) or "basis" (the
+#: energy ⟨φ|T + v_free|φ⟩ of the confined basis orbital in the free atom's potential).
+ONSITE_RULES: tuple[str, ...] = ("eigenvalue", "basis")
+#: Default onsite rule.
+DEFAULT_ONSITE: str = "eigenvalue"
+#: Smallest confinement radius accepted, in units of the covalent radius.
+MIN_R0_FACTOR: float = 0.5
 #: Outer radius (bohr) of the free-atom grid that gives the onsite energies.
 FREE_ATOM_R_MAX: float = 100.0
 
+_ONSITE_TEXT = {
+    "eigenvalue": "free-atom eigenvalues (no confinement) of the same configuration",
+    "basis": "energy <phi|T + v_free|phi> of each confined basis orbital in the free atom's "
+    "Kohn-Sham potential (same configuration)",
+}
 _FUNCTIONAL = "LDA: Slater exchange + VWN5 correlation (Vosko, Wilk, Nusair 1980)"
 _PERIOD_ENDS = (2, 10, 18, 36, 54, 86, 118)
 _D_BLOCK = set(range(21, 31)) | set(range(39, 49)) | {57} | set(range(71, 81)) | {89}
@@ -196,7 +208,10 @@ class ConfinedOrbital:
     energy : float
         Eigenvalue in the confined potential (Hartree).
     free_energy : float
-        Eigenvalue of the same level in the free atom (Hartree): the onsite energy.
+        Eigenvalue of the same level in the free atom (Hartree).
+    onsite : float
+        Onsite energy of the parameter set (Hartree): ``free_energy`` or the basis-orbital
+        energy ⟨φ|T + v_free|φ⟩, see :data:`ONSITE_RULES`.
     r0 : float
         Confinement radius of the atom that produced the orbital (bohr).
     u : array (n_r,)
@@ -212,6 +227,7 @@ class ConfinedOrbital:
     occupation: float
     energy: float
     free_energy: float
+    onsite: float
     r0: float
     u: NDArray[np.float64] = field(repr=False)
     radial: NDArray[np.float64] = field(repr=False)
@@ -223,8 +239,13 @@ class ConfinedOrbital:
 
     @property
     def free_energy_ev(self) -> float:
-        """Free-atom eigenvalue, the onsite energy (eV, vacuum zero)."""
+        """Free-atom eigenvalue (eV, vacuum zero)."""
         return self.free_energy * HARTREE_EV
+
+    @property
+    def onsite_ev(self) -> float:
+        """Onsite energy of the parameter set (eV, vacuum zero)."""
+        return self.onsite * HARTREE_EV
 
 
 @dataclass(frozen=True, eq=False)
@@ -298,8 +319,8 @@ class ConfinedAtom:
         raise SettingsError(f"{self.symbol} has no {shell!r} valence orbital; it has {self.shells}")
 
     def onsite_ev(self) -> dict[str, float]:
-        """Onsite energies (free-atom eigenvalues, eV, vacuum zero) by shell."""
-        return {o.shell: o.free_energy_ev for o in self.orbitals}
+        """Onsite energies (eV, vacuum zero) by shell (rule: ``settings["onsite"]``)."""
+        return {o.shell: o.onsite_ev for o in self.orbitals}
 
     @property
     def valence_electrons(self) -> float:
@@ -370,6 +391,7 @@ def confined_atom(
     shells: tuple[str, ...] | None = None,
     grid: RadialGrid | None = None,
     configuration: str = "solid",
+    onsite: str = DEFAULT_ONSITE,
 ) -> ConfinedAtom:
     """Confined valence orbitals, density, neutral-atom potential and onsite energies.
 
@@ -427,6 +449,16 @@ def confined_atom(
                 + ", ".join(levels)
             )
         per_shell[sh] = _check_r0(val, f"shell_r0[{sh!r}]")
+    if onsite not in ONSITE_RULES:
+        raise SettingsError(f"onsite {onsite!r}; accepted: {', '.join(ONSITE_RULES)}")
+    rcov = default_r0(z, 1.0)
+    for sh, val in [*per_shell.items(), ("density", r0_rho)]:
+        if val < MIN_R0_FACTOR * rcov:
+            raise SettingsError(
+                f"{symbol}: confinement radius {val:.4g} bohr ({sh}) is too small: below "
+                f"{MIN_R0_FACTOR:g} r_cov = {MIN_R0_FACTOR * rcov:.4g} bohr it squeezes the "
+                f"valence orbital into the core; accepted: r0 >= {MIN_R0_FACTOR * rcov:.4g} bohr"
+            )
     cfg = _configuration(z, levels, configuration)
     g = grid if grid is not None else make_grid(z)
 
@@ -455,6 +487,7 @@ def confined_atom(
     _, vxc = lda_xc(rho, dens_atom.correlation)
     v_na = -z / g.r + hartree_potential(g, rho) + vxc
 
+    v_free = LogGridFunction(np.asarray(free.r), np.asarray(free.potential), power=-1)(g.r)
     orbitals = []
     potentials = {}
     for sh, (n, l) in levels.items():  # noqa: E741
@@ -466,10 +499,16 @@ def confined_atom(
             eps_free = free.orbital(label).energy
         except SettingsError:  # pragma: no cover - the configuration always holds it
             raise CalculationError(f"{symbol}: no free-atom level {label}") from None
+        if onsite == "basis":
+            # <φ|T + v_free|φ> = ε_conf + <φ|v_free − v_own|φ> (v_own: its confined potential)
+            eps_onsite = float(orb.energy) + g.integrate(u * u * (v_free - atom.potential))
+        else:
+            eps_onsite = float(eps_free)
         orbitals.append(
             ConfinedOrbital(
                 label=label, shell=sh, n=n, l=l, occupation=float(orb.occupation),
-                energy=float(orb.energy), free_energy=float(eps_free), r0=per_shell[sh],
+                energy=float(orb.energy), free_energy=float(eps_free), onsite=eps_onsite,
+                r0=per_shell[sh],
                 u=readonly(u), radial=readonly(u / g.r),
             )
         )  # fmt: skip
@@ -488,7 +527,8 @@ def confined_atom(
             f"{DENSITY_R0_FACTOR:g} r_cov (density); r_cov from ase.data.covalent_radii",
             "covalent_radius_angstrom": float(covalent_radii[z]),
         },
-        "onsite": "free-atom eigenvalues (no confinement) of the same configuration",
+        "onsite": _ONSITE_TEXT[onsite],
+        "onsite_rule": onsite,
         "grid": {"r_min_bohr": g.r_min, "h_ln_r": g.h, "r_max_bohr": g.r_max, "n": g.n},
         "free_atom_grid_r_max_bohr": FREE_ATOM_R_MAX,
         "valband_version": valband.__version__,

@@ -191,9 +191,14 @@ def _auto_cutoff(t: PairTable, hopping_tol: float, overlap_tol: float) -> float:
 
 def _element_entry(atom: ConfinedAtom) -> dict[str, Any]:
     conf = atom.settings["confinement"]
+    what = (
+        "energy <phi|T + v_free|phi> of the confined {label} basis orbital in the free atom"
+        if atom.settings.get("onsite_rule") == "basis"
+        else "eigenvalue of the {label} level of the free atom"
+    )
     src = (
-        f"free-atom {atom.relativity}-relativistic LDA (VWN) eigenvalue of the {{label}} level, "
-        f"configuration {atom.configuration}; valband.atom.solve_atom"
+        f"{what}, {atom.relativity}-relativistic LDA (VWN), configuration "
+        f"{atom.configuration}; valband.atom.solve_atom"
     )
     return {
         "shells": list(atom.shells),
@@ -205,7 +210,7 @@ def _element_entry(atom: ConfinedAtom) -> dict[str, Any]:
         },
         "onsite": {
             o.shell: {
-                "value": round(o.free_energy_ev, _DIGITS),
+                "value": round(o.onsite_ev, _DIGITS),
                 "source": src.format(label=o.label)
                 + f" (basis orbital confined with r0 = {conf['r0_orbitals_bohr'][o.shell]:.4g} "
                 f"bohr, power {conf['power']:g})",
