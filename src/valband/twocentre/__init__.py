@@ -16,7 +16,7 @@ Seifert, Kaschner, Phys. Rev. B 51, 12947 (1995); Becke, J. Chem. Phys. 88, 2547
 from .confinement import (
     DEFAULT_POWER,
     DENSITY_R0_FACTOR,
-    WAVEFUNCTION_R0_FACTOR,
+    SHELL_R0_FACTORS,
     ConfinedAtom,
     ConfinedOrbital,
     confined_atom,
@@ -32,6 +32,7 @@ from .integrals import (
     bond_integrals,
 )
 from .quadrature import BondGrid, QuadratureSettings, bond_grid
+from .generate import GenerationSettings, generate_parameter_set, regenerate_pair
 from .tables import (
     PairTable,
     default_distances,
@@ -42,8 +43,11 @@ from .tables import (
 
 __all__ = [
     "DEFAULT_POWER",
+    "GenerationSettings",
+    "generate_parameter_set",
+    "regenerate_pair",
     "DENSITY_R0_FACTOR",
-    "WAVEFUNCTION_R0_FACTOR",
+    "SHELL_R0_FACTORS",
     "BondFrameElements",
     "BondGrid",
     "BondIntegrals",

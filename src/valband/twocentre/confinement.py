@@ -63,8 +63,11 @@ from .integrals import RadialOrbital, TwoCentreSite
 from .radial import LogGridFunction
 
 __all__ = [
-    "WAVEFUNCTION_R0_FACTOR",
+    "SHELL_R0_FACTORS",
     "DENSITY_R0_FACTOR",
+    "CONFIGURATION_RULES",
+    "ONSITE_RULES",
+    "MIN_R0_FACTOR",
     "DEFAULT_POWER",
     "FREE_ATOM_R_MAX",
     "ConfinedOrbital",
@@ -74,16 +77,11 @@ __all__ = [
     "valence_shells",
 ]
 
-#: k of the orbitals' r₀ = k·r_cov: 2, the lower end of the usual 2–3 r_cov range. Measured
-#: for fcc Cu (a = 3.61 Å, density radius equal to the orbital radius): the d manifold at
-#: Γ, X, L spans 4.35 eV for k = 2, 4.66 eV for k = 2.5 and 4.90 eV for k = 3 (photoemission:
-#: about 3–3.5 eV, from memory), so the tightest radius of the range is the default.
-WAVEFUNCTION_R0_FACTOR: float = 2.0
-#: k of the density's r₀ = k·r_cov (the neutral-atom potential V_A in H = T + V_A + V_B).
-#: Kept equal to the orbitals' factor (one confined SCF serves both). Measured for Cu with
-#: k = 2 orbitals: a tighter density (1.5 r_cov) narrows the d manifold to 3.84 eV but lifts Γ1
-#: from −9.0 to −8.2 eV below E_F; a looser one (3 r_cov) widens it to 4.87 eV.
-DENSITY_R0_FACTOR: float = 2.0
+#: Default orbital radius r₀ = factor × r_cov per shell (see the module docstring for the
+#: measurements behind the numbers).
+SHELL_R0_FACTORS: dict[str, float] = {"s": 1.45, "p": 1.8, "d": 0.85}
+#: Default density radius r₀ = factor × r_cov (the atom whose density makes V_na).
+DENSITY_R0_FACTOR: float = 1.55
 #: Exponent of the confining potential.
 DEFAULT_POWER: float = 2.0
 #: Rules for the atoms' configuration: "solid" (d block: d^(n-1) s^1, as in the metal) or
@@ -175,7 +173,7 @@ def valence_shells(
     return out
 
 
-def default_r0(element: str | int, factor: float = WAVEFUNCTION_R0_FACTOR) -> float:
+def default_r0(element: str | int, factor: float = 1.0) -> float:
     """``factor`` × covalent radius of ``element`` (ASE's table, Å) in bohr."""
     z, _ = _resolve(element)
     return float(factor * covalent_radii[z] / BOHR_ANGSTROM)
@@ -265,7 +263,7 @@ class ConfinedAtom:
     power : float
         Exponent of the confinement.
     r0 : float
-        Confinement radius of the orbitals (bohr), unless ``shell_r0`` overrides it.
+        Largest orbital confinement radius (bohr); ``shell_r0`` has each shell's.
     r0_density : float
         Confinement radius of the atom whose density makes the potential (bohr).
     shell_r0 : dict
@@ -400,8 +398,8 @@ def confined_atom(
     element : str or int
         Symbol or atomic number (s, p or d block).
     r0 : float, optional
-        Confinement radius of the orbitals (bohr); default :func:`default_r0` with
-        :data:`WAVEFUNCTION_R0_FACTOR`.
+        Confinement radius of all orbitals (bohr); default per shell
+        :data:`SHELL_R0_FACTORS` × r_cov.
     power : float
         Exponent of V_conf = (r/r₀)^power (Hartree), 0 < power ≤ 20.
     relativity : {"scalar", "none"}
@@ -436,12 +434,13 @@ def confined_atom(
     if not (0 < p <= 20):
         raise SettingsError(f"power = {power!r}; accepted: an exponent 0 < power <= 20")
     levels = valence_shells(z, shells)
-    r0_wf = default_r0(z) if r0 is None else _check_r0(r0, "r0")
+    r0_wf = None if r0 is None else _check_r0(r0, "r0")
     if r0_density is None:
         r0_rho = default_r0(z, DENSITY_R0_FACTOR)
     else:
         r0_rho = _check_r0(r0_density, "r0_density")
-    per_shell = {sh: r0_wf for sh in levels}
+    per_shell = {sh: default_r0(z, SHELL_R0_FACTORS[sh]) if r0_wf is None else r0_wf
+                 for sh in levels}
     for sh, val in (shell_r0 or {}).items():
         if sh not in levels:
             raise SettingsError(
@@ -523,8 +522,9 @@ def confined_atom(
             "power": p,
             "r0_orbitals_bohr": {sh: per_shell[sh] for sh in levels},
             "r0_density_bohr": r0_rho,
-            "default_rule": f"r0 = {WAVEFUNCTION_R0_FACTOR:g} r_cov (orbitals), "
-            f"{DENSITY_R0_FACTOR:g} r_cov (density); r_cov from ase.data.covalent_radii",
+            "default_rule": "r0 = "
+            + ", ".join(f"{f:g} r_cov ({sh})" for sh, f in SHELL_R0_FACTORS.items())
+            + f", {DENSITY_R0_FACTOR:g} r_cov (density); r_cov from ase.data.covalent_radii",
             "covalent_radius_angstrom": float(covalent_radii[z]),
         },
         "onsite": _ONSITE_TEXT[onsite],
@@ -535,7 +535,7 @@ def confined_atom(
     }
     return ConfinedAtom(
         symbol=symbol, z=z, configuration=format_configuration(cfg), relativity=relativity,
-        power=p, r0=r0_wf, r0_density=r0_rho, shell_r0=per_shell, grid=g, r=g.r,
+        power=p, r0=max(per_shell.values()), r0_density=r0_rho, shell_r0=per_shell, grid=g, r=g.r,
         density=readonly(rho), neutral_potential=readonly(v_na), orbitals=tuple(orbitals),
         orbital_potentials=potentials, free_eigenvalues=dict(free.eigenvalues),
         settings=settings,

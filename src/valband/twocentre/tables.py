@@ -96,15 +96,17 @@ class PairTable:
         return BOND_INTEGRALS.index(name)
 
 
-def default_distances(first: str, second: str, n: int = 40) -> NDArray[np.float64]:
-    """Return a distance grid (Å) for a pair: 0.6× to 3.2× the sum of covalent radii."""
+def default_distances(
+    first: str, second: str, n: int = 40, lo: float = 0.6, hi: float = 3.2
+) -> NDArray[np.float64]:
+    """Return a distance grid (Å) for a pair: ``lo``× to ``hi``× the sum of covalent radii."""
     from ase.data import atomic_numbers, covalent_radii
 
     try:
         rsum = covalent_radii[atomic_numbers[first]] + covalent_radii[atomic_numbers[second]]
     except KeyError as exc:
         raise SettingsError(f"unknown element {exc.args[0]!r}; accepted: element symbols") from None
-    return np.linspace(0.6 * rsum, 3.2 * rsum, n)
+    return np.linspace(lo * rsum, hi * rsum, n)
 
 
 def _atom(x: str | ConfinedAtom, options: Mapping[str, Any]) -> ConfinedAtom:
@@ -220,9 +222,9 @@ def _element_entry(atom: ConfinedAtom) -> dict[str, Any]:
     }
 
 
-def _spline(r: NDArray[np.float64], v: NDArray[np.float64]) -> dict[str, Any]:
+def _spline(r: NDArray[np.float64], v: NDArray[np.float64], digits: int = _DIGITS) -> dict[str, Any]:
     return {"law": "spline", "r": [float(x) for x in r],
-            "v": [round(float(x), _DIGITS) for x in v]}  # fmt: skip
+            "v": [round(float(x), digits) for x in v]}  # fmt: skip
 
 
 def parameter_set_dict(
@@ -234,6 +236,8 @@ def parameter_set_dict(
     cutoffs: Mapping[str, tuple[float, float]] | None = None,
     hopping_tol: float = 1e-3,
     overlap_tol: float = 1e-4,
+    digits: int = _DIGITS,
+    extra_provenance: Mapping[str, Any] | None = None,
 ) -> dict[str, Any]:
     """Parameter-set dictionary (format v1, non-orthogonal, spline laws) from pair tables.
 
@@ -248,6 +252,10 @@ def parameter_set_dict(
         ``{"A-B": (inner, outer)}`` in Å for some pairs; others get the automatic cutoff.
     hopping_tol, overlap_tol : float
         Tolerances of the automatic cutoff (eV, dimensionless).
+    digits : int
+        Decimals kept for the integral values (eV or dimensionless).
+    extra_provenance : mapping, optional
+        More entries for the set's provenance record (e.g. the generation settings).
 
     Returns
     -------
@@ -268,7 +276,9 @@ def parameter_set_dict(
                     "(onsite energies or shells differ); accepted: one confined atom per element"
                 )
             elements[el] = entry
-            provenance[el] = atom.settings["confinement"] | {"relativity": atom.relativity}
+            provenance[el] = atom.settings["confinement"] | {
+                "relativity": atom.relativity, "configuration": atom.configuration,
+                "onsite_rule": atom.settings.get("onsite_rule", "eigenvalue")}
         key = f"{t.first}-{t.second}"
         if key in pairs or f"{t.second}-{t.first}" in pairs:
             raise SettingsError(f"pair {key} given twice; accepted: one table per element pair")
@@ -302,8 +312,10 @@ def parameter_set_dict(
             f"(valband.twocentre {valband.__version__}); max route asymmetry "
             f"{t.settings['max_asymmetry_eV']:.2g} eV",
             "cutoff": {"inner": round(inner, 6), "outer": round(outer, 6), "taper": "quintic"},
-            "hopping": {n: _spline(r, t.hopping[keep, BOND_INTEGRALS.index(n)]) for n in names},
-            "overlap": {n: _spline(r, t.overlap[keep, BOND_INTEGRALS.index(n)]) for n in names},
+            "hopping": {n: _spline(r, t.hopping[keep, BOND_INTEGRALS.index(n)], digits)
+                        for n in names},
+            "overlap": {n: _spline(r, t.overlap[keep, BOND_INTEGRALS.index(n)], digits)
+                        for n in names},
         }
     quad = tables[0].settings["quadrature"]
     record = {
@@ -312,8 +324,11 @@ def parameter_set_dict(
         "functional": "LDA, Slater exchange + VWN5 correlation",
         "confinement": provenance,
         "quadrature": quad,
-        "onsite": "free-atom eigenvalues",
+        "onsite": sorted({a.settings["onsite"] for t in tables for a in t.atoms.values()}),
+        "cutoff_rule": {"hopping_tol_eV": hopping_tol, "overlap_tol": overlap_tol,
+                        "taper": f"quintic over the last {TAPER_FRACTION:g} of the cutoff"},
         "valband_version": valband.__version__,
+        **dict(extra_provenance or {}),
     }
     return {
         "schema_version": 1,
