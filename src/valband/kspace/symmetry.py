@@ -14,7 +14,8 @@ from numpy.typing import NDArray
 
 from valband.structure import Structure
 
-__all__ = ["SYMPREC", "equivalent_sites", "ir_reciprocal_mesh", "space_group"]
+__all__ = ["SYMPREC", "equivalent_sites", "ir_reciprocal_mesh", "space_group",
+           "space_group_operations"]
 
 #: Distance tolerance (Å) for symmetry finding (spglib's ``symprec``).
 SYMPREC = 1e-4
@@ -34,6 +35,14 @@ def _dataset(structure: Structure):
         return spglib.get_symmetry_dataset(structure.to_spglib(), symprec=SYMPREC)
     except Exception:  # spglib raises its own error types; treat as "no symmetry"
         return None
+
+
+def space_group_operations(structure: Structure):
+    """Fractional rotations W (n, 3, 3) and translations t (n, 3) of the space group, or None."""
+    ds = _dataset(structure)
+    if ds is None:
+        return None
+    return np.asarray(ds.rotations, dtype=np.int64), np.asarray(ds.translations, dtype=np.float64)
 
 
 def space_group(structure: Structure) -> str:

@@ -93,7 +93,8 @@ def _orbit_average(weights: np.ndarray, chans, structure) -> np.ndarray:
     return weights @ avg.T
 
 
-def _narrow_bracket(count, eig, k_weights, n_el, half_width, lower, upper):
+def _narrow_bracket(count, eig, k_weights, n_el, half_width, lower, upper,
+                    degeneracy=SPIN_DEGENERACY):
     """A tight Fermi-level bracket around the step-function estimate, if it brackets.
 
     The T = 0 count of the unsmeared states puts E_F within a few smearing widths of the
@@ -102,7 +103,7 @@ def _narrow_bracket(count, eig, k_weights, n_el, half_width, lower, upper):
     """
     flat = eig.ravel()
     order = np.argsort(flat)
-    occ = np.cumsum(np.repeat(SPIN_DEGENERACY * k_weights, eig.shape[1])[order])
+    occ = np.cumsum(np.repeat(degeneracy * k_weights, eig.shape[1])[order])
     e0 = flat[order[min(int(np.searchsorted(occ, n_el)), flat.size - 1)]]
     a, b = max(lower, e0 - half_width), min(upper, e0 + half_width)
     if a < b and count(a) <= n_el <= count(b):
@@ -126,16 +127,21 @@ def compute_dos(model, settings: DOSSettings | None = None, progress: bool = Fal
     s = settings or DOSSettings()
     s.validate()
     structure = model.structure
-    symmetry = s.symmetry and s.resolve == "l"
-    kmesh = make_mesh(structure, s.mesh, kind=s.mesh_kind, symmetry=symmetry)
+    # Spin models (valband.spin) hold one electron per state and may restrict the symmetry
+    # that reduces the mesh (a magnetic pattern, or none with magnetism and spin–orbit).
+    degeneracy = getattr(model, "spin_degeneracy", SPIN_DEGENERACY)
+    cell = getattr(model, "symmetry_cell", structure)
+    symmetry = s.symmetry and s.resolve == "l" and cell is not None
+    kmesh = make_mesh(structure if cell is None else cell, s.mesh, kind=s.mesh_kind,
+                      symmetry=symmetry)
     chans, cmat = channel_matrix(model.orbitals, s.resolve)
     eig, w = diagonalise(model, kmesh.kpoints, cmat, progress=progress)
     if kmesh.symmetry:
-        w = _orbit_average(w, chans, structure)
+        w = _orbit_average(w, chans, cell)
 
     n_el = model.n_electrons if s.n_electrons is None else float(s.n_electrons)
     n_bands = eig.shape[1]
-    max_el = SPIN_DEGENERACY * n_bands
+    max_el = degeneracy * n_bands
     lo, hi = float(eig.min()), float(eig.max())
     if s.method == "tetrahedron":
         rc = structure.reciprocal_cell
@@ -143,17 +149,19 @@ def compute_dos(model, settings: DOSSettings | None = None, progress: bool = Fal
 
         def count(e: float) -> float:
             return tetrahedron_count(kmesh.mesh, rc, kmesh.ir_map, eig, e,
-                                     degeneracy=SPIN_DEGENERACY, classes=classes)
+                                     degeneracy=degeneracy, classes=classes)
 
         margin = 1e-6
     else:
         def count(e: float) -> float:
-            return smearing_count(eig, kmesh.weights, e, s.width, s.method, degeneracy=SPIN_DEGENERACY)
+            return smearing_count(eig, kmesh.weights, e, s.width, s.method,
+                                  degeneracy=degeneracy)
 
         margin = 50.0 * s.width if s.method == "gaussian" else 1e4 * s.width
     lower, upper = lo - margin, hi + margin
     if s.method == "gaussian" and 0 <= n_el <= max_el:
-        lower, upper = _narrow_bracket(count, eig, kmesh.weights, n_el, 12.0 * s.width, lower, upper)
+        lower, upper = _narrow_bracket(count, eig, kmesh.weights, n_el, 12.0 * s.width, lower,
+                                       upper, degeneracy)
     e_f = find_fermi_level(count, n_el, lower, upper, max_electrons=max_el, tol=1e-8)
 
     pad = 1.0 + (0.0 if s.method == "tetrahedron" else 5.0 * s.width)
@@ -166,11 +174,11 @@ def compute_dos(model, settings: DOSSettings | None = None, progress: bool = Fal
     if s.method == "tetrahedron":
         total, chan = tetrahedron_dos(
             kmesh.mesh, structure.reciprocal_cell, kmesh.ir_map, eig, grid + e_f, w,
-            degeneracy=SPIN_DEGENERACY, classes=classes,
+            degeneracy=degeneracy, classes=classes,
         )
     else:
         total, chan = smearing_dos(
-            eig, kmesh.weights, grid + e_f, s.width, s.method, w, degeneracy=SPIN_DEGENERACY
+            eig, kmesh.weights, grid + e_f, s.width, s.method, w, degeneracy=degeneracy
         )
     recorded = asdict(s)
     recorded.update(mesh=kmesh.to_dict(), n_electrons=n_el, energy_range_eV=[float(grid[0]), float(grid[-1])])
