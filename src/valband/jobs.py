@@ -20,16 +20,22 @@ __all__ = ["dos_job", "bands_job"]
 
 
 def dos_job(model, settings, out_dir: str | Path | None, window=None, shell: str = "d",
-            fmt: str = "png", progress: bool = False, command: str = "dos", plot: bool = True):
+            fmt: str = "png", progress: bool = False, command: str = "dos", plot: bool = True,
+            dos=None, extra: dict | None = None):
     """DOS + descriptors; writes ``dos.csv``, ``pdos_sites.csv``, ``dos.<fmt>``, ``summary.json``.
 
     Returns ``(summary, dos_result, descriptor_table)``; with ``out_dir=None`` nothing is written.
+    A ``dos`` computed elsewhere (CPA, neutrality, spin: :mod:`valband.workflows.methods`) is
+    written instead of computing one; ``extra`` adds blocks to the summary.
     """
     from valband.workflows import compute_dos, describe
 
-    dos = compute_dos(model, settings, progress=progress)
+    if dos is None:
+        dos = compute_dos(model, settings, progress=progress)
     has_shell = any(c.shell == shell for c in dos.channel_labels)
-    table = describe(dos, shell, window, dict(enumerate(model.structure.labels))) if has_shell else None
+    labels = (dict(enumerate(model.structure.labels))
+              if len(model.structure.labels) == dos.n_sites else None)
+    table = describe(dos, shell, window, labels) if has_shell else None
     files = {}
     if out_dir is not None:
         out = prepare_out_dir(out_dir)
@@ -41,7 +47,8 @@ def dos_job(model, settings, out_dir: str | Path | None, window=None, shell: str
             fig, ax = new_figure()
             plot_dos(ax, dos, title=f"{model.structure.formula} — {model.parameter_set}")
             files["dos_plot"] = save_figure(fig, out / f"dos.{fmt}")
-    summary = summary_of(command, dos, [table] if table else None, files=files or None)
+    summary = summary_of(command, dos, [table] if table else None, extra=extra,
+                         files=files or None)
     if out_dir is not None:
         write_summary(Path(out_dir) / "summary.json", summary)
     return summary, dos, table

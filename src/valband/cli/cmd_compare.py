@@ -14,6 +14,7 @@ from valband.cli.cmd_simulate import (
 from valband.cli.common import (
     add_depth_arguments,
     add_dos_arguments,
+    add_method_arguments,
     add_output_arguments,
     dos_settings,
     print_json,
@@ -96,13 +97,14 @@ def add_arguments(p) -> None:
                    help="binding-energy window of the band-centre moments, eV (default 0 to the "
                    "deep end of the fit window)")
     add_dos_arguments(p)
+    add_method_arguments(p)
     add_output_arguments(p, default_out="valband-compare")
 
 
 def run(args) -> int:
     """Read the measurement, compute the DOS, fit, write the files, print."""
     from valband.atom.tables import photon_energy_of
-    from valband.cli.common import depth_weights_of, load_model_with_info
+    from valband.cli.common import depth_weights_of, load_model_with_info, method_dos
     from valband.spectra.compare import compare_job
     from valband.spectra.measured import read_spectrum
 
@@ -113,6 +115,7 @@ def run(args) -> int:
     measured = read_spectrum(args.measured, axis=args.axis, photon_energy=hv,
                              work_function=args.work_function, block=block)
     model, info = load_model_with_info(args)
+    pre, method = method_dos(args, model, info)
     weights, record = depth_weights_of(args, model, info,
                                        hv if hv is not None else measured.photon_energy)
     free = args.free
@@ -130,7 +133,7 @@ def run(args) -> int:
         band_window=args.band_window,
         calibrate_window=tuple(args.edge_window) if args.calibrate_edge else None,
         fmt=args.format, progress=not (args.quiet or args.json), layer_weights=weights,
-        depth_record=record)
+        depth_record=record, dos=pre, extra={"method": method} if method else None)
     if args.json:
         print_json(summary)
     elif not args.quiet:

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from valband.cli.common import (
     add_dos_arguments,
+    add_method_arguments,
     add_model_arguments,
     add_output_arguments,
     dos_settings,
@@ -17,18 +18,21 @@ def add_arguments(p) -> None:
     """Options of ``valband describe``."""
     add_model_arguments(p)
     add_dos_arguments(p)
+    add_method_arguments(p)
     add_output_arguments(p, default_out=None)
 
 
 def run(args) -> int:
     """Compute and print the descriptor table (and write files if --out is given)."""
-    from valband.cli.common import load_model
+    from valband.cli.common import load_model_with_info, method_dos
     from valband.errors import SettingsError
     from valband.jobs import dos_job
 
-    model = load_model(args)
+    model, info = load_model_with_info(args)
+    pre, record = method_dos(args, model, info)
     summary, dos, table = dos_job(model, dos_settings(args), args.out, window_of(args), args.shell,
-                                  args.format, progress=not args.quiet, command="describe")
+                                  args.format, progress=not args.quiet, command="describe",
+                                  dos=pre, extra={"method": record} if record else None)
     if table is None:
         raise SettingsError(f"{model.structure.formula} has no {args.shell} shell in this parameter set")
     if args.json:

@@ -6,6 +6,7 @@ import sys
 
 from valband.cli.common import (
     add_dos_arguments,
+    add_method_arguments,
     add_model_arguments,
     add_output_arguments,
     dos_settings,
@@ -19,17 +20,20 @@ def add_arguments(p) -> None:
     """Options of ``valband dos``."""
     add_model_arguments(p)
     add_dos_arguments(p)
+    add_method_arguments(p)
     add_output_arguments(p, default_out="valband-dos")
 
 
 def run(args) -> int:
     """Compute, write, print."""
-    from valband.cli.common import load_model
+    from valband.cli.common import load_model_with_info, method_dos
     from valband.jobs import dos_job
 
-    model = load_model(args)
+    model, info = load_model_with_info(args)
+    pre, record = method_dos(args, model, info)
     summary, dos, table = dos_job(model, dos_settings(args), args.out, window_of(args), args.shell,
-                                  args.format, progress=not args.quiet)
+                                  args.format, progress=not args.quiet,
+                                  dos=pre, extra={"method": record} if record else None)
     if args.json:
         print_json(summary)
     elif not args.quiet:

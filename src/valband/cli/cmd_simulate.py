@@ -7,6 +7,7 @@ import sys
 from valband.cli.common import (
     add_depth_arguments,
     add_dos_arguments,
+    add_method_arguments,
     add_model_arguments,
     add_output_arguments,
     dos_settings,
@@ -51,6 +52,7 @@ def add_arguments(p) -> None:
                    "at lower BE) or 'tougaard B' (B in eV², universal cross-section)")
     add_depth_arguments(g)
     add_dos_arguments(p)
+    add_method_arguments(p)
     add_output_arguments(p, default_out="valband-spectrum")
 
 
@@ -69,16 +71,18 @@ def _inelastic(pair):
 
 def run(args) -> int:
     """Compute the DOS and the spectrum, write the files, print."""
-    from valband.cli.common import depth_weights_of, load_model_with_info
+    from valband.cli.common import depth_weights_of, load_model_with_info, method_dos
     from valband.spectra.io import simulate_job
 
     model, info = load_model_with_info(args)
+    pre, method = method_dos(args, model, info)
     weights, record = depth_weights_of(args, model, info, args.photon_energy)
     summary, spec, dos = simulate_job(
         model, dos_settings(args), args.out, args.photon_energy, args.temperature,
         args.resolution, tuple(args.lifetime), (args.angle, args.polarization), args.format,
         progress=not (args.quiet or args.json), inelastic=_inelastic(args.inelastic),
-        layer_weights=weights, depth_record=record)
+        layer_weights=weights, depth_record=record, dos=pre,
+        extra={"method": method} if method else None)
     if args.json:
         print_json(summary)
     elif not args.quiet:

@@ -8,6 +8,7 @@ import sys
 __all__ = [
     "add_model_arguments", "add_dos_arguments", "add_output_arguments",
     "load_model", "load_model_with_info", "add_depth_arguments", "depth_weights_of",
+    "add_method_arguments", "method_dos",
     "dos_settings", "print_json", "window_of",
 ]
 
@@ -45,6 +46,60 @@ def add_dos_arguments(p: argparse.ArgumentParser) -> None:
                    help="energy window for the descriptors, eV relative to E_F (default: whole grid)")
     g.add_argument("--shell", default="d", choices=["s", "p", "d"],
                    help="shell the descriptors describe (default d)")
+
+
+def add_method_arguments(p: argparse.ArgumentParser) -> None:
+    """Alloy method, charge neutrality, spin–orbit and magnetism options."""
+    g = p.add_argument_group("alloys, surfaces and spin")
+    g.add_argument("--alloy-method", default="supercell", choices=["supercell", "vca", "cpa"],
+                   help="for a 'random …' or 'sqs …' spec: the decorated supercell (default), "
+                   "the virtual crystal (vca) or the coherent potential approximation (cpa; "
+                   "Lorentzian η = --width)")
+    g.add_argument("--neutral", default=None, choices=["site", "element", "layer"],
+                   help="self-consistent onsite shifts keeping each site, element or layer "
+                   "(slabs) charge neutral")
+    g.add_argument("--soc", action="store_true",
+                   help="spin–orbit coupling λL·S on p and d shells (constants from the "
+                   "parameter set, else from valband's atom engine)")
+    g.add_argument("--magnetic", action="store_true",
+                   help="collinear Stoner magnetism, self-consistent with the Fermi level")
+    g.add_argument("--stoner", default=None, metavar="EL=I,…",
+                   help="Stoner parameters in eV overriding the built-in table, e.g. Fe=0.9")
+    g.add_argument("--initial-moment", type=float, default=None, metavar="MU",
+                   help="starting moment per magnetic site in μB (default 2)")
+    g.add_argument("--order", default=None, choices=["fm", "afm"],
+                   help="magnetic start: ferromagnetic (default) or two-sublattice "
+                   "antiferromagnetic")
+
+
+def _pairs(text: str | None, what: str) -> dict | None:
+    if text is None:
+        return None
+    from valband.errors import SettingsError
+
+    out = {}
+    for item in text.split(","):
+        key, sep, val = item.partition("=")
+        try:
+            out[key.strip()] = float(val)
+        except ValueError:
+            sep = ""
+        if not sep or not key.strip():
+            raise SettingsError(f"{what} {text!r}: expected EL=VALUE pairs separated by commas, "
+                                "e.g. Fe=0.9,Ni=1.0")
+    return out
+
+
+def method_dos(args, model, info):
+    """(DOS, record) for the method options, or (None, None) for the plain k-mesh DOS."""
+    from valband.params import load_parameter_set
+    from valband.workflows.methods import dos_by_method
+
+    return dos_by_method(
+        model, info, dos_settings(args), params=load_parameter_set(args.params),
+        alloy=args.alloy_method, neutral=args.neutral, soc=args.soc, magnetic=args.magnetic,
+        stoner=_pairs(args.stoner, "--stoner"), initial_moment=args.initial_moment,
+        order=args.order, progress=not (args.quiet or getattr(args, "json", False)))
 
 
 def add_output_arguments(p: argparse.ArgumentParser, default_out: str | None) -> None:

@@ -20,9 +20,10 @@ COMMANDS: dict[str, tuple[str, str]] = {
     "simulate": ("valband.cli.cmd_simulate", "simulated valence-band photoemission spectrum at a photon energy"),
     "compare": ("valband.cli.cmd_compare", "fit the simulated spectrum to a measured one (overlay, residuals, band centre)"),
     "xsec": ("valband.cli.cmd_xsec", "valence-subshell photoionization cross sections and β at a photon energy"),
-    "params": ("valband.cli.cmd_params", "generate (two-centre, first principles), show or fit Slater-Koster parameter sets"),
+    "params": ("valband.cli.cmd_params", "generate (first principles), show or fit parameter sets"),
     "report": ("valband.cli.cmd_report", "self-contained HTML report of a run folder, and its main figure for papers"),
     "demo": ("valband.cli.cmd_demo", "run the bundled (invented) demo scenario end to end"),
+    "screen": ("valband.cli.cmd_screen", "run a screening campaign (many candidates, local processes or Dask) into an SQLite database"),
 }
 
 

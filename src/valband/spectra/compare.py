@@ -78,7 +78,7 @@ def compare_job(model, dos_settings, measured: MeasuredSpectrum, out_dir, *,
                 background: str = "shirley", free=None, initial=None, shift_range=None,
                 window=None, band_window=None, calibrate_window=None, fmt: str = "png",
                 progress: bool = False, dos=None, layer_weights=None,
-                depth_record: dict | None = None):
+                depth_record: dict | None = None, extra: dict | None = None):
     """DOS → fit against ``measured``; writes the files of the module docstring.
 
     ``calibrate_window`` (BE_low, BE_high) runs the Fermi-edge calibration first; then the
@@ -123,7 +123,8 @@ def compare_job(model, dos_settings, measured: MeasuredSpectrum, out_dir, *,
                                  if k in ("axis", "axis_from", "work_function_eV", "conversion")}}
     summary = summary_of("compare", dos, extra={"fit": fit.summary(), "measured": measured_block,
                                                 "calibration": calibration,
-                                                "depth_weighting": depth_record},
+                                                "depth_weighting": depth_record}
+                         | (extra or {}),
                          files=files or None)
     if out_dir is not None:
         write_summary(Path(out_dir) / "summary.json", summary)

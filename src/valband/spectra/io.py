@@ -56,7 +56,8 @@ def spectrum_summary(spectrum: Spectrum) -> dict:
 
 def simulate_job(model, dos_settings, out_dir, photon_energy, temperature, gaussian_fwhm,
                  lorentz, geometry, fmt: str = "png", progress: bool = False, inelastic=None,
-                 dos=None, layer_weights=None, depth_record: dict | None = None):
+                 dos=None, layer_weights=None, depth_record: dict | None = None,
+                 extra: dict | None = None):
     """DOS → spectrum; writes ``spectrum.csv``, ``spectrum.<fmt>``, ``summary.json``.
 
     Returns ``(summary, spectrum, dos)``; with ``out_dir=None`` nothing is written. A ``dos``
@@ -85,7 +86,7 @@ def simulate_job(model, dos_settings, out_dir, photon_energy, temperature, gauss
                       f"{spec.settings['photon_energy_eV']:g} eV — {model.parameter_set}")
         files["spectrum_plot"] = save_figure(fig, out / f"spectrum.{fmt}")
     block = spectrum_summary(spec) | ({"depth_weighting": depth_record} if depth_record else {})
-    summary = summary_of("simulate", dos, extra={"spectrum": block},
+    summary = summary_of("simulate", dos, extra={"spectrum": block} | (extra or {}),
                          files=files or None)
     if out_dir is not None:
         write_summary(Path(out_dir) / "summary.json", summary)
