@@ -15,7 +15,7 @@ def coarse():
 
 @pytest.fixture(scope="session")
 def cu():
-    """Confined Cu atom with the module defaults (scalar-relativistic, r0 = 2 r_cov)."""
+    """Confined Cu atom with the module defaults (scalar-relativistic, per-shell radii)."""
     return confined_atom("Cu")
 
 

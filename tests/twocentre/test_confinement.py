@@ -10,7 +10,13 @@ import pytest
 from ase.data import atomic_numbers, covalent_radii
 
 from valband.atom.scf import BOHR_ANGSTROM
-from valband.twocentre import WAVEFUNCTION_R0_FACTOR, confined_atom, default_r0, valence_shells
+from valband.twocentre import (
+    DENSITY_R0_FACTOR,
+    SHELL_R0_FACTORS,
+    confined_atom,
+    default_r0,
+    valence_shells,
+)
 
 NIST = Path(__file__).resolve().parents[2].parent / "shared" / "reference" / "nist_srd141_lda.csv"
 
@@ -29,10 +35,14 @@ def test_cu_record(cu):
     assert [o.label for o in cu.orbitals] == ["4s", "4p", "3d"]
     assert cu.orbital("p").occupation == 0.0  # the empty 4p level of 3d10 4s1
     assert cu.valence_electrons == 11.0
-    # default r0 = 2 × covalent radius (ASE's table, Cordero et al. 2008: Cu 1.32 Å)
-    assert WAVEFUNCTION_R0_FACTOR == 2.0
-    assert cu.r0 == pytest.approx(2 * covalent_radii[atomic_numbers["Cu"]] / BOHR_ANGSTROM)
-    assert default_r0("Cu") == pytest.approx(2 * 1.32 / 0.529177, rel=1e-4)
+    # default r0 = factor × covalent radius per shell (ASE's table, Cordero et al. 2008:
+    # Cu 1.32 Å; bohr = 0.529177 Å, CODATA)
+    rcov = covalent_radii[atomic_numbers["Cu"]] / BOHR_ANGSTROM
+    assert default_r0("Cu") == pytest.approx(1.32 / 0.529177, rel=1e-4)
+    for sh in "spd":
+        assert cu.shell_r0[sh] == pytest.approx(SHELL_R0_FACTORS[sh] * rcov)
+        assert cu.orbital(sh).r0 == cu.shell_r0[sh]
+    assert cu.r0_density == pytest.approx(DENSITY_R0_FACTOR * rcov)
     conf = cu.settings["confinement"]
     assert conf["power"] == 2 and set(conf["r0_orbitals_bohr"]) == {"s", "p", "d"}
     for key in ("method", "functional", "relativity", "grid", "valband_version"):
@@ -90,3 +100,31 @@ def test_separate_density_and_shell_radii():
     tight = confined_atom("Al", r0=5.0)
     mean_r = [a.grid.integrate(a.orbital("p").u ** 2 * a.r) for a in (atom, tight)]
     assert mean_r[0] > mean_r[1]
+
+
+def test_solid_configuration_rule():
+    # common practice for transition metals: d^(n-1) s^1 as in the metal; the Zn group and the
+    # noble metals keep their ground states (Cu 3d10 4s1 already is d^(n-1) s^1)
+    from valband.twocentre.confinement import _configuration
+
+    def text(el, rule="solid"):
+        from valband.atom.configurations import format_configuration, resolve_element
+
+        z, _ = resolve_element(el)
+        return format_configuration(_configuration(z, valence_shells(el), rule))
+
+    assert "3d9 4s1" in text("Ni") and "3d8 4s2" in text("Ni", "ground")
+    assert "4d9 5s1" in text("Pd") and "5d7 6s1" in text("Os")
+    assert "3d10 4s1" in text("Cu") and "3d10 4s2" in text("Zn")
+    assert "3s2 3p1" in text("Al")
+    assert "3d8.5 4s1.5" in text("Ni", "[Ar] 3d8.5 4s1.5 4p0")
+
+
+def test_onsite_rules(cu):
+    # "basis": <φ|T + v_free|φ> ≥ the free eigenvalue for the same level (variational
+    # principle, common practice); the default is the free eigenvalue itself
+    basis = confined_atom("Cu", onsite="basis")
+    for o, b in zip(cu.orbitals, basis.orbitals, strict=True):
+        assert o.onsite == o.free_energy
+        assert b.onsite > b.free_energy
+    assert basis.settings["onsite_rule"] == "basis"

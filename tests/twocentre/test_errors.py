@@ -75,3 +75,23 @@ def test_unbound_free_level_is_explained():
 def test_options_with_ready_atoms(al):
     with pytest.raises(SettingsError, match="apply only to elements given by symbol"):
         pair_table(al, "Al", [2.5], r0=5.0)
+
+
+def test_confinement_radius_too_small():
+    # below MIN_R0_FACTOR × r_cov the valence orbital would be squeezed into the core
+    from valband.twocentre.confinement import MIN_R0_FACTOR, default_r0
+
+    tiny = 0.9 * MIN_R0_FACTOR * default_r0("Cu")
+    with pytest.raises(SettingsError, match="is too small"):
+        confined_atom("Cu", shell_r0={"d": tiny})
+    with pytest.raises(SettingsError, match=r"\(density\) is too small"):
+        confined_atom("Cu", r0_density=tiny)
+
+
+def test_bad_configuration_and_onsite_rule():
+    with pytest.raises(SettingsError, match="accepted: 'solid', 'ground'"):
+        confined_atom("Cu", configuration="[Ar] 3d10 4q1")
+    with pytest.raises(InputError, match="holds 28 electrons"):
+        confined_atom("Cu", configuration="[Ar] 3d9 4s1")
+    with pytest.raises(SettingsError, match="accepted: eigenvalue, basis"):
+        confined_atom("Cu", onsite="dft")

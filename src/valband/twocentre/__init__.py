@@ -4,7 +4,10 @@ Pipeline: :func:`confined_atom` (confined valence orbitals, neutral-atom potenti
 onsite energies) → :func:`bond_integrals` (S and H of the 14 bond integrals on a bond-length
 grid, Becke two-centre quadrature, potential superposition) → :func:`pair_table` (both steps
 for an element pair) → :func:`parameter_set_dict` / :func:`write_parameter_set_toml`
-(a non-orthogonal parameter set in format v1 with spline laws).
+(a non-orthogonal parameter set in format v1 with spline laws) → :func:`generate_parameter_set`
+(elements and all their pairs, settings recorded for :func:`regenerate_pair`; the command
+``valband params generate``). The shipped set ``valband-tc-2026`` is its output; the default
+confinement radii and their evidence are in :mod:`valband.twocentre.confinement`.
 
 Units: bohr and Hartree inside; Å and eV at the interface (distances, integrals, onsite
 energies). Confinement radii r₀ are in bohr, as in the confinement literature.
@@ -23,6 +26,7 @@ from .confinement import (
     default_r0,
     valence_shells,
 )
+from .generate import GenerationSettings, generate_parameter_set, regenerate_pair
 from .integrals import (
     BondFrameElements,
     BondIntegrals,
@@ -32,7 +36,6 @@ from .integrals import (
     bond_integrals,
 )
 from .quadrature import BondGrid, QuadratureSettings, bond_grid
-from .generate import GenerationSettings, generate_parameter_set, regenerate_pair
 from .tables import (
     PairTable,
     default_distances,

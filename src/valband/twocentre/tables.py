@@ -194,9 +194,10 @@ def _auto_cutoff(t: PairTable, hopping_tol: float, overlap_tol: float) -> float:
 def _element_entry(atom: ConfinedAtom) -> dict[str, Any]:
     conf = atom.settings["confinement"]
     what = (
-        "energy <phi|T + v_free|phi> of the confined {label} basis orbital in the free atom"
+        "energy <phi|T + v_free|phi> of the confined {label} basis orbital in the free-atom "
+        "potential"
         if atom.settings.get("onsite_rule") == "basis"
-        else "eigenvalue of the {label} level of the free atom"
+        else "free-atom eigenvalue of the {label} level"
     )
     src = (
         f"{what}, {atom.relativity}-relativistic LDA (VWN), configuration "
@@ -222,7 +223,9 @@ def _element_entry(atom: ConfinedAtom) -> dict[str, Any]:
     }
 
 
-def _spline(r: NDArray[np.float64], v: NDArray[np.float64], digits: int = _DIGITS) -> dict[str, Any]:
+def _spline(
+    r: NDArray[np.float64], v: NDArray[np.float64], digits: int = _DIGITS
+) -> dict[str, Any]:
     return {"law": "spline", "r": [float(x) for x in r],
             "v": [round(float(x), digits) for x in v]}  # fmt: skip
 
