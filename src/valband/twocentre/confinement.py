@@ -456,6 +456,11 @@ def confined_atom(
         Valence shells (default :func:`valence_shells`).
     grid : RadialGrid, optional
         Grid of the confined atoms (default :func:`valband.atom.grid.make_grid`).
+    configuration : str
+        "solid" (d block d^(n−1) s¹, default), "ground", or an explicit configuration such as
+        "[Ar] 3d9 4s1" (empty valence levels are added with occupation 0).
+    onsite : {"eigenvalue", "basis"}
+        Onsite-energy rule (module docstring).
 
     Returns
     -------
@@ -466,7 +471,8 @@ def confined_atom(
     InputError
         Unknown element or one with an open f shell (ConfigurationError is an InputError).
     SettingsError
-        r0 ≤ 0, bad power, relativity or shells.
+        r0 ≤ 0 or below MIN_R0_FACTOR × r_cov, bad power, relativity, shells, configuration or
+        onsite rule.
     CalculationError
         An SCF fails or a valence level is not bound in the free atom.
     """
