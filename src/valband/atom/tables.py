@@ -56,7 +56,6 @@ from __future__ import annotations
 import datetime as _dt
 import json
 import math
-import os
 import warnings
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -482,13 +481,9 @@ def cache_dir() -> Path:
     ``$VALBAND_CACHE_DIR/xsec``, else ``$XDG_CACHE_HOME/valband/xsec``, else
     ``~/.cache/valband/xsec``.
     """
-    if os.environ.get("VALBAND_CACHE_DIR"):
-        base = Path(os.environ["VALBAND_CACHE_DIR"])
-    elif os.environ.get("XDG_CACHE_HOME"):
-        base = Path(os.environ["XDG_CACHE_HOME"]) / "valband"
-    else:
-        base = Path.home() / ".cache" / "valband"
-    return base / "xsec"
+    from valband.cache import cache_root
+
+    return cache_root() / "xsec"
 
 
 def _file_name(symbol: str, relativity: str) -> str:

@@ -167,10 +167,15 @@ class SplineLaw(DistanceLaw):
     _spline: object = field(init=False, repr=False, compare=False)  # scipy CubicSpline
 
     def __post_init__(self) -> None:
-        from scipy.interpolate import CubicSpline  # imported here: heavy, and rarely needed
+        object.__setattr__(self, "_spline", None)  # built on first use (a set holds thousands)
 
-        spline = CubicSpline(np.array(self.r), np.array(self.v), bc_type="not-a-knot")
-        object.__setattr__(self, "_spline", spline)
+    def _curve(self):
+        if self._spline is None:
+            from scipy.interpolate import CubicSpline  # imported here: heavy
+
+            object.__setattr__(self, "_spline", CubicSpline(np.array(self.r), np.array(self.v),
+                                                            bc_type="not-a-knot"))
+        return self._spline
 
     def __call__(self, r: NDArray[np.float64]) -> NDArray[np.float64]:
         r = np.asarray(r, dtype=np.float64)
@@ -180,7 +185,7 @@ class SplineLaw(DistanceLaw):
                 f"{self.r[0]:.6g} Å of the tabulated curve; accepted: distances from "
                 f"{self.r[0]:.6g} Å up to the cutoff (extend the table to shorter bonds)"
             )
-        return np.asarray(self._spline(r), dtype=np.float64)
+        return np.asarray(self._curve()(r), dtype=np.float64)
 
     def _params(self) -> dict[str, Any]:
         return {"r": list(self.r), "v": list(self.v)}

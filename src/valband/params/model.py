@@ -335,11 +335,81 @@ def list_parameter_sets() -> list[str]:
     return sorted(p.stem for p in directory.glob("*.toml"))
 
 
+#: Parsed sets of this process, keyed by (file content hash, origin).
+_MEMO: dict[tuple[str, str], ParameterSet] = {}
+
+
+def _cache_file(digest: str) -> Path:
+    import sys
+
+    import valband
+    from valband.cache import cache_root
+
+    tag = f"{valband.__version__}-py{sys.version_info.major}{sys.version_info.minor}"
+    return cache_root() / "params" / f"{digest}-{tag}.pickle"
+
+
 def _read_file(path: Path) -> ParameterSet:
+    """Parse and validate a set, memoised per process and cached on disk by content hash.
+
+    A large first-principles set takes about a second to parse and validate; the validated
+    set is kept as a pickle in the user cache (:mod:`valband.cache`), keyed by the SHA-256 of
+    the file's bytes, the valband version and the Python version, so an edited file, a new
+    valband or another Python never sees a stale entry. A cache that cannot be read or
+    written is ignored (the set is parsed as usual).
+    """
+    import hashlib
+    import pickle
+
     try:
         raw = path.read_bytes()
     except OSError as exc:
         raise ParameterError(f"cannot read parameter file {path}: {exc.strerror or exc}") from None
+    digest = hashlib.sha256(raw).hexdigest()
+    key = (digest, str(path))
+    if key in _MEMO:
+        return _MEMO[key]
+    cached = _cache_file(digest)
+    pset = None
+    if len(raw) > _CACHE_MIN_BYTES:
+        try:
+            with cached.open("rb") as fh:
+                got = pickle.load(fh)
+            if isinstance(got, ParameterSet) and got.origin == str(path):
+                pset = got
+        except Exception:  # noqa: BLE001 - any unreadable cache entry is simply rebuilt
+            pset = None
+    if pset is None:
+        pset = _parse_bytes(path, raw)
+        if len(raw) > _CACHE_MIN_BYTES:
+            _write_cache(cached, pset)
+    _MEMO[key] = pset
+    return pset
+
+
+#: Files smaller than this parse faster than a cache lookup pays for.
+_CACHE_MIN_BYTES = 200_000
+
+
+def _write_cache(target: Path, pset: ParameterSet) -> None:
+    import contextlib
+    import os
+    import pickle
+    import tempfile
+
+    with contextlib.suppress(OSError, pickle.PicklingError, TypeError, AttributeError):
+        target.parent.mkdir(parents=True, exist_ok=True)
+        fd, tmp = tempfile.mkstemp(dir=target.parent, suffix=".part")
+        try:
+            with os.fdopen(fd, "wb") as fh:
+                pickle.dump(pset, fh, protocol=pickle.HIGHEST_PROTOCOL)
+            os.replace(tmp, target)
+        finally:
+            with contextlib.suppress(FileNotFoundError):
+                os.unlink(tmp)
+
+
+def _parse_bytes(path: Path, raw: bytes) -> ParameterSet:
     try:
         data = tomllib.loads(raw.decode("utf-8"))
     except UnicodeDecodeError as exc:
