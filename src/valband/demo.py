@@ -28,10 +28,11 @@ DEMO_NOTE = (
 #: Parameters the demo fits to the invented measurements (the lifetime law fully free).
 DEMO_FIT_FREE = ("shift", "scale", "gaussian_fwhm", "gamma0", "lifetime_a", "background")
 
-#: Said with every demo run on the default set (see README, "Parameter sets").
+#: Said with every demo run on the harrison-universal set (see README, "Parameter sets").
 DEFAULT_SET_CAUTION = (
-    "Caution: the default harrison-universal set places E_F too close to the top of the "
-    "noble-metal d bands; this ranking demonstrates the workflow and is not a prediction."
+    "Caution: the harrison-universal set places E_F too close to the top of the noble-metal "
+    "d bands; this ranking demonstrates the workflow and is not a prediction (the default "
+    "valband-tc-2026 set is the quantitative one)."
 )
 
 
@@ -48,7 +49,7 @@ def demo_candidates() -> tuple[str, list[dict]]:
     return spec["scenario"], cands
 
 
-def run_demo(out_dir: str | Path, params: str = "harrison-universal", mesh: str = "20",
+def run_demo(out_dir: str | Path, params: str = "valband-tc-2026", mesh: str = "20",
              fmt: str = "png", progress: bool = False, log=print) -> dict:
     """Run every candidate; return (and write) the demo summary with its screening table."""
     from valband.demo_measurements import shipped_file

@@ -31,7 +31,7 @@ FILE_NAME = "halvard-ridge-valence-bands.vms"
 #: Everything that makes the invented spectra (recorded in the file's comment lines).
 INVENTED_SETTINGS: dict = {
     "seed": 20261202,
-    "params": "harrison-universal",
+    "params": "valband-tc-2026",
     "mesh": "16",
     "photon": "Al-Ka",
     "resolution_fwhm_eV": 0.45,

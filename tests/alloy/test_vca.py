@@ -94,7 +94,7 @@ def test_scan_matches_direct_runs(harrison):
     # ASE's reference data); the primitive fcc vector is a/√2
     assert scan.lattice_constants[1] * np.sqrt(2) == pytest.approx(0.5 * (3.61 + 3.89), abs=1e-6)
     st = build_structure("Cu fcc 3.75")
-    fixed = vca_scan(st, comps[1:2], harrison, s)
+    fixed = vca_scan(st, comps[1:2], harrison, s, window="full")
     direct = compute_dos(vca_model(st, comps[1], harrison), s)
     assert fixed.fermi_levels[0] == pytest.approx(direct.fermi_level, abs=1e-12)
     assert fixed.to_dict()["rows"][0]["n_states"] == pytest.approx(10.0, abs=1e-3)

@@ -43,7 +43,7 @@ def test_dos_writes_files_and_json(capsys, tmp_path):
     assert summary["schema"] == "valband.summary" and summary["schema_version"] == 1
     assert summary["n_electrons"] == 11
     assert summary["settings"]["mesh"]["mesh"] == [6, 6, 6]
-    assert summary["provenance"]["parameter_set"]["name"] == "harrison-universal"
+    assert summary["provenance"]["parameter_set"]["name"] == "valband-tc-2026"
     d = summary["descriptors"][0]
     assert d["shell"] == "d" and "Cu" in d["elements"]
     for f in ("dos.csv", "pdos_sites.csv", "dos.png", "summary.json"):
@@ -90,7 +90,7 @@ def test_demo_runs_and_ranks(capsys, tmp_path):
     ("argv", "message"),
     [
         (["dos", "nothing-here.cif"], "neither an existing structure file"),
-        (["dos", "Zn fcc 3.9", "--mesh", "4"], "Zn"),
+        (["dos", "Mo bcc 3.15", "--mesh", "4"], "Mo"),
         (["dos", "Cu fcc", "--mesh", "0"], "k-mesh"),
         (["dos", "Cu fcc", "--mesh", "4", "--width", "-0.1"], "width"),
         (["dos", "Cu fcc", "--mesh", "4", "--electrons", "40"], "electron"),

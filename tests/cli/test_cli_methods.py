@@ -13,6 +13,8 @@ import pytest
 from valband.cli.main import main
 
 RANDOM = "random Cu0.75Pd0.25 fcc 2x2x2 seed=7"
+#: CPA and the electron counts below need the orthogonal Harrison set
+HARRISON = ["--params", "harrison-universal"]
 
 
 def _summary(capsys, *argv):
@@ -22,12 +24,13 @@ def _summary(capsys, *argv):
 
 def test_cpa_and_vca_from_a_random_spec(capsys):
     cpa = _summary(capsys, "dos", RANDOM, "--alloy-method", "cpa", "--mesh", "8", "--gamma",
-                   "--width", "0.1", "--step", "0.02", "--out", "cpa")
+                   "--width", "0.1", "--step", "0.02", "--out", "cpa", *HARRISON)
     assert cpa["method"]["method"] == "coherent potential approximation"
     assert cpa["method"]["composition"] == {"Cu": 0.75, "Pd": 0.25}
     els = {d for d in cpa["descriptors"][0]["elements"]}
     assert els == {"Cu", "Pd"}            # component-resolved descriptors
-    vca = _summary(capsys, "describe", RANDOM, "--alloy-method", "vca", "--mesh", "8")
+    vca = _summary(capsys, "describe", RANDOM, "--alloy-method", "vca", "--mesh", "8",
+                   *HARRISON)
     assert vca["method"]["method"] == "virtual crystal approximation"
     # one virtual site: 0.75·11 + 0.25·10 valence electrons (harrison-universal counts)
     assert vca["n_electrons"] == pytest.approx(0.75 * 11 + 0.25 * 10)

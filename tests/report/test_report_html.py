@@ -31,7 +31,7 @@ def test_demo_writes_report_and_figures(demo_run):
     for r in summary["screening"]:
         assert f">{r['name']}<" in html
     assert "Fit to the measured spectrum" in html and "1σ" in html
-    assert "harrison-universal" in html and "settings and provenance" in html
+    assert "valband-tc-2026" in html and "settings and provenance" in html
     assert all(escape(c) in html for c in CAUTIONS) and "Invented" in html
     assert (out / "figure.png").read_bytes()[:4] == b"\x89PNG"
     assert (out / "figure.pdf").read_bytes()[:5] == b"%PDF-"

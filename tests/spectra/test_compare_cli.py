@@ -11,7 +11,9 @@ import pytest
 
 from valband.cli.main import main
 
-_DOS = ["--mesh", "8", "--step", "0.02", "--emin", "-12", "--emax", "5"]
+# the invented files are made from the harrison-universal Cu DOS of the fixture
+_DOS = ["--mesh", "8", "--step", "0.02", "--emin", "-12", "--emax", "5", "--params",
+        "harrison-universal"]
 
 
 def _write_measurement(cu_dos, path: Path, shift: float = 0.2, seed: int = 3) -> None:

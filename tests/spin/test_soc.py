@@ -185,9 +185,9 @@ def test_d_band_second_moment_grows_by_three_halves_xi_squared(harrison, element
     model = build_model(build_structure(f"{element} fcc"), harrison)
     s = DOSSettings(mesh=8, width=0.1, step=0.005)
     nosoc = compute_dos(model, s)
-    d0 = describe(nosoc).elements[element]
+    d0 = describe(nosoc, "d", "full").elements[element]
     r = soc_dos(model, s, params=harrison)
-    d1 = describe(r.total).elements[element]
+    d1 = describe(r.total, "d", "full").elements[element]
     xi = [c["xi_ev"] for c in r.spin_orbit if c["shell"] == "d"][0]
     assert d1.width**2 - d0.width**2 == pytest.approx(1.5 * xi**2, rel=1e-3)
     assert d1.centre + r.fermi_level == pytest.approx(d0.centre + nosoc.fermi_level, abs=1e-4)

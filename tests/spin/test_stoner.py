@@ -45,7 +45,7 @@ def test_exact_relations_of_the_stoner_state(harrison):
     r = magnetic_dos(model, DOSSettings(mesh=10, width=0.1, step=0.005))
     rep = r.magnetism
     assert rep.splitting_eV[0] == pytest.approx(STONER_TABLE["Fe"][0] * rep.d_moments[0], rel=1e-12)
-    table = spin_describe(r)
+    table = spin_describe(r, window="full")
     c_up, c_dn = table["up"].elements["Fe"].centre, table["down"].elements["Fe"].centre
     assert c_dn - c_up == pytest.approx(rep.splitting_eV[0], abs=2e-4)
     assert r.up.n_electrons + r.down.n_electrons == pytest.approx(model.n_electrons, abs=1e-8)

@@ -46,9 +46,9 @@ def add_arguments(p) -> None:
     p.add_argument("measured", help="measured spectrum: two-column text/CSV or VAMAS (.vms) file")
     p.add_argument("structure", help="structure file (any format ASE reads) or a build spec in "
                    "quotes, e.g. 'Cu fcc'")
-    p.add_argument("--params", default="harrison-universal", metavar="SET",
+    p.add_argument("--params", default="valband-tc-2026", metavar="SET",
                    help="parameter set: a shipped name or a .toml path "
-                   "(default harrison-universal)")
+                   "(default valband-tc-2026)")
     m = p.add_argument_group("measured file")
     m.add_argument("--block", default=None, help="VAMAS block name or 0-based index")
     m.add_argument("--axis", default="auto", choices=["auto", "binding", "kinetic"],

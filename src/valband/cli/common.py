@@ -12,7 +12,7 @@ __all__ = [
     "dos_settings", "print_json", "window_of",
 ]
 
-DEFAULT_PARAMS = "harrison-universal"
+DEFAULT_PARAMS = "valband-tc-2026"
 
 
 def add_model_arguments(p: argparse.ArgumentParser) -> None:
@@ -43,7 +43,8 @@ def add_dos_arguments(p: argparse.ArgumentParser) -> None:
     g.add_argument("--electrons", type=float, default=None,
                    help="valence electrons per cell (default: from the parameter set)")
     g.add_argument("--window", type=float, nargs=2, metavar=("EMIN", "EMAX"), default=None,
-                   help="energy window for the descriptors, eV relative to E_F (default: whole grid)")
+                   help="energy window for the descriptors, eV relative to E_F (default -15 5, "
+                   "clipped to the grid)")
     g.add_argument("--shell", default="d", choices=["s", "p", "d"],
                    help="shell the descriptors describe (default d)")
 

@@ -12,7 +12,13 @@ from valband.dos import BandDescriptors, band_descriptors
 from valband.errors import SettingsError
 from valband.results import DOSResult
 
-__all__ = ["DescriptorTable", "describe"]
+__all__ = ["DescriptorTable", "describe", "DEFAULT_WINDOW"]
+
+#: Default descriptor window, eV relative to E_F (clipped to the DOS grid): the valence band
+#: and the lowest empty d states. It keeps out the d weight that non-orthogonal (Mulliken)
+#: projections leave in the p bands 10–25 eV above E_F, which otherwise moves the centre of
+#: a first-principles set by ~0.9 eV (DEVELOPERS.md, "First-principles parameter sets").
+DEFAULT_WINDOW = (-15.0, 5.0)
 
 
 @dataclass(frozen=True)
@@ -50,12 +56,18 @@ def describe(
     ----------
     dos : a DOS result (energies relative to E_F).
     shell : "s", "p" or "d".
-    window : (emin, emax) in eV relative to E_F; default the whole DOS grid.
+    window : (emin, emax) in eV relative to E_F; default :data:`DEFAULT_WINDOW` clipped to the
+        DOS grid; ``"full"`` for the whole grid (the moments theorem holds there).
     """
     if shell not in ("s", "p", "d"):
         raise SettingsError(f"shell {shell!r}: accepted 's', 'p' or 'd'")
-    win = (float(dos.energies[0]), float(dos.energies[-1])) if window is None else (
-        float(window[0]), float(window[1]))
+    if isinstance(window, str) and window == "full":
+        win = (float(dos.energies[0]), float(dos.energies[-1]))
+    elif window is None:
+        win = (max(float(dos.energies[0]), DEFAULT_WINDOW[0]),
+               min(float(dos.energies[-1]), DEFAULT_WINDOW[1]))
+    else:
+        win = (float(window[0]), float(window[1]))
     elements = {}
     sites = {}
     for el in dos.elements:
