@@ -56,7 +56,7 @@ def dos_job(model, settings, out_dir: str | Path | None, window=None, shell: str
 
 def bands_job(model, out_dir: str | Path | None, path: str | None = None, npoints: int = 300,
               mesh="16", fmt: str = "png", element: str | None = None, shell: str = "d",
-              progress: bool = False):
+              progress: bool = False, extra: dict | None = None):
     """Bands along a path with E_F from a quick DOS on ``mesh``; writes ``bands.csv``, plot, summary."""
     from valband.workflows import DOSSettings, compute_bands, compute_dos
 
@@ -75,10 +75,10 @@ def bands_job(model, out_dir: str | Path | None, path: str | None = None, npoint
         plot_bands(ax, bands, element=element, shell=shell,
                    title=f"{model.structure.formula} — {model.parameter_set}")
         files["bands_plot"] = save_figure(fig, out / f"bands.{fmt}")
-    extra = {"bands": bands.settings | {"labels": list(bands.labels),
+    blocks = {"bands": bands.settings | {"labels": list(bands.labels),
                                         "label_positions_inv_angstrom": bands.label_positions.tolist(),
-                                        "fermi_level_from_mesh": str(mesh)}}
-    summary = summary_of("bands", dos, extra=extra, files=files or None)
+                                        "fermi_level_from_mesh": str(mesh)}} | (extra or {})
+    summary = summary_of("bands", dos, extra=blocks, files=files or None)
     if out_dir is not None:
         write_summary(Path(out_dir) / "summary.json", summary)
     return summary, bands

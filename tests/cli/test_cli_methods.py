@@ -63,3 +63,17 @@ def test_bad_method_options_exit_1_one_line(capsys, argv, word):
     assert main([*argv, "--quiet"]) == 1
     err = capsys.readouterr().err.strip()
     assert word in err and len(err.splitlines()) == 1
+
+
+def test_bands_with_spin_orbit(capsys):
+    # the basis doubles (orbital ⊗ spin): 2 × 9 bands for one s p d site
+    s = _summary(capsys, "bands", "Au fcc", "--soc", "--mesh", "6", "--npoints", "30",
+                 "--out", "au")
+    assert s["method"]["method"] == "spin + spin-orbit"
+    assert {c["shell"] for c in s["method"]["spin_orbit"]} == {"p", "d"}
+    from pathlib import Path
+
+    text = Path("au/bands.csv").read_text(encoding="utf-8").splitlines()
+    rows = [ln for ln in text if not ln.startswith("#")]
+    bands = {int(r.split(",")[4]) for r in rows[1:]}
+    assert len(bands) == 18

@@ -16,6 +16,9 @@ def add_arguments(p) -> None:
     p.add_argument("--mesh", default="16", help="mesh of the DOS run that fixes E_F (default 16)")
     p.add_argument("--character", default="d", metavar="[ELEMENT:]SHELL",
                    help="orbital character drawn as fat bands, e.g. d or Pd:d (default d)")
+    p.add_argument("--soc", action="store_true",
+                   help="spin–orbit coupling λL·S on p and d shells (constants from the "
+                   "parameter set, else from valband's atom engine)")
     add_output_arguments(p, default_out="valband-bands")
 
 
@@ -30,8 +33,16 @@ def run(args) -> int:
         raise SettingsError(f"--character {args.character!r}: expected SHELL or ELEMENT:SHELL, "
                             "SHELL one of s, p, d")
     model = load_model(args)
+    extra = None
+    if args.soc:
+        from valband.params import load_parameter_set
+        from valband.spin import spin_model
+
+        model = spin_model(model, soc=True, params=load_parameter_set(args.params))
+        extra = {"method": {"method": "spin + spin-orbit",
+                            "spin_orbit": [c.to_dict() for c in model.spin_orbit.values()]}}
     summary, bands = bands_job(model, args.out, args.path, args.npoints, args.mesh, args.format,
-                               element or None, shell, progress=not args.quiet)
+                               element or None, shell, progress=not args.quiet, extra=extra)
     if args.json:
         print_json(summary)
     elif not args.quiet:

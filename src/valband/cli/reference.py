@@ -22,14 +22,24 @@ _EXIT_CODES = """\
 | code | meaning |
 |---|---|
 | 0 | success |
-| 1 | an input or calculation error, reported in one line on stderr (`--debug` shows the traceback) |
+| 1 | an input or calculation error, in one line on stderr (`--debug` shows the traceback) |
 | 2 | a command-line usage error (unknown option, missing argument) or no command given |
 | 130 | interrupted (Ctrl-C) |
 """
 
 
+def _sections(title: str, parser) -> list[str]:
+    """Render a parser's help, then that of each nested subcommand (``params generate``)."""
+    out = [f"## {title}", "", "```text", parser.format_help().rstrip(), "```", ""]
+    for action in parser._actions:
+        if action.__class__.__name__ == "_SubParsersAction":
+            for name, child in action.choices.items():
+                out += _sections(f"{title} {name}", child)
+    return out
+
+
 def reference_markdown() -> str:
-    """The whole reference as Markdown: ``valband --help`` and each command's ``--help``."""
+    """Build the reference as Markdown: ``valband --help`` and each command's ``--help``."""
     os.environ["COLUMNS"] = str(WIDTH)
     from valband.cli.main import COMMANDS, build_parser
 
@@ -43,8 +53,7 @@ def reference_markdown() -> str:
              "energies are in eV, lengths in Å.", "",
              "## valband", "", "```text", parser.format_help().rstrip(), "```", ""]
     for name in COMMANDS:
-        parts += [f"## valband {name}", "", "```text",
-                  sub.choices[name].format_help().rstrip(), "```", ""]
+        parts += _sections(f"valband {name}", sub.choices[name])
     parts.append(_EXIT_CODES)
     return "\n".join(parts)
 
