@@ -8,15 +8,14 @@ scans run through x = 0 and x = 1.
 
 from __future__ import annotations
 
-import math
 from collections.abc import Mapping
 
 import numpy as np
 from numpy.typing import NDArray
 
 from valband.conventions import SHELL_ORBITALS
-from valband.errors import ParameterError, StructureError
-from valband.structure.alloys import COMPOSITION_SUM_TOL, format_composition
+from valband.errors import ParameterError
+from valband.structure.alloys import format_composition, normalise_composition
 
 __all__ = [
     "check_composition",
@@ -34,42 +33,11 @@ def check_composition(composition: Mapping[str, float], params=None) -> dict[str
     :data:`~valband.structure.alloys.COMPOSITION_SUM_TOL`); :class:`ParameterError` when
     ``params`` is given and lacks an element.
     """
-    from ase.data import atomic_numbers
-
-    if not isinstance(composition, Mapping) or not composition:
-        raise StructureError(
-            f"composition {composition!r}: give a mapping of element to atomic fraction, "
-            "e.g. {'Cu': 0.5, 'Pd': 0.5}"
-        )
-    out: dict[str, float] = {}
-    for el, x in composition.items():
-        if el not in atomic_numbers or el == "X":
-            raise StructureError(
-                f"composition {dict(composition)}: unknown element {el!r}; "
-                "use chemical symbols such as 'Cu' or 'Pd'"
-            )
-        try:
-            xf = float(x)
-        except (TypeError, ValueError):
-            raise StructureError(
-                f"composition {dict(composition)}: fraction of {el} ({x!r}) is not a number"
-            ) from None
-        if not math.isfinite(xf) or xf < 0:
-            raise StructureError(
-                f"composition {dict(composition)}: fraction of {el} is {x!r}; "
-                "fractions must be finite and ≥ 0"
-            )
-        out[el] = xf
-    total = sum(out.values())
-    if abs(total - 1.0) > COMPOSITION_SUM_TOL:
-        raise StructureError(
-            f"composition {dict(composition)}: fractions sum to {total:g}; they must sum to 1 "
-            f"(within {COMPOSITION_SUM_TOL:g})"
-        )
+    out = normalise_composition(composition, keep_zeros=True)
     if params is not None:
         for el in out:
             params.element(el)
-    return {el: x / total for el, x in out.items()}
+    return out
 
 
 def composition_label(composition: Mapping[str, float]) -> str:

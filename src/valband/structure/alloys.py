@@ -78,12 +78,13 @@ _VOLUME_PER_ATOM = {
 # --------------------------------------------------------------------------------------------
 # compositions
 # --------------------------------------------------------------------------------------------
-def normalise_composition(composition: Mapping[str, float]) -> dict[str, float]:
+def normalise_composition(composition: Mapping[str, float],
+                          keep_zeros: bool = False) -> dict[str, float]:
     """Validate ``{element: fraction}`` and return it rescaled to sum exactly to 1.
 
-    Elements with fraction 0 are dropped. Raises :class:`StructureError` for unknown elements,
-    negative or non-finite fractions, or fractions that do not sum to 1 (within
-    :data:`COMPOSITION_SUM_TOL`).
+    Elements with fraction 0 are dropped unless ``keep_zeros``. Raises :class:`StructureError`
+    for unknown elements, negative or non-finite fractions, no positive fraction, or fractions
+    that do not sum to 1 (within :data:`COMPOSITION_SUM_TOL`).
     """
     from ase.data import atomic_numbers
 
@@ -110,10 +111,10 @@ def normalise_composition(composition: Mapping[str, float]) -> dict[str, float]:
                 f"composition {dict(composition)}: fraction of {el} is {x!r}; "
                 "fractions must be finite and ≥ 0"
             )
-        if xf > 0:
+        if xf > 0 or keep_zeros:
             out[el] = xf
     total = sum(out.values())
-    if not out or abs(total - 1.0) > COMPOSITION_SUM_TOL:
+    if not total > 0 or abs(total - 1.0) > COMPOSITION_SUM_TOL:
         raise StructureError(
             f"composition {dict(composition)}: fractions sum to {total:g}; they must sum to 1 "
             f"(within {COMPOSITION_SUM_TOL:g})"
