@@ -5,11 +5,12 @@ E = T₁ / (2 · T₂) ≥ 0.85, where T₁ and T₂ are the wall times of the s
 two worker processes, both measured here (the baseline is the one-worker run in the same
 process). Pools are started and warmed (one candidate per worker) before timing, so E measures
 the steady state; the pool start-up (spawn, imports, numba cache loads) is reported apart,
-and E including it too. Candidates: 40 random 8-site Cu–Pd fcc cells (invented
-campaign), ~0.2–0.5 s each on a 12³ k-mesh (on 8³ the per-candidate overhead of the pool
-shows: 0.79 measured against 0.88 on 12³, same machine, same hour). The machine may be shared with other jobs, so the same run also
-measures what two processes get from it: the efficiency E₀ of a pure-Python busy loop on 1 vs
-2 spawned processes; E/E₀ is the campaign's efficiency relative to the machine's.
+and E including it too. Candidates: 40 random 8-site Cu–Pd fcc cells (invented campaign),
+~0.2–0.5 s each on a 12³ k-mesh (on 8³ the per-candidate overhead of the pool shows: 0.79
+against 0.88 on 12³, same machine, same hour). The machine may be shared with other jobs, so
+the same run also measures what two processes get from it: the efficiency E₀ of a pure-Python
+busy loop on 1 vs 2 spawned processes; E/E₀ is the campaign's efficiency relative to the
+machine's.
 """
 
 from __future__ import annotations
