@@ -27,7 +27,7 @@ from valband.errors import CalculationError
 from valband.progress import Progress
 from valband.solve.small_eigh import SMALL_MAX_SIZE, eigh_small
 
-__all__ = ["diagonalise", "real_gauge", "DEFAULT_CHUNK_BYTES"]
+__all__ = ["diagonalise", "real_gauge", "generalized_eigh", "DEFAULT_CHUNK_BYTES"]
 
 #: Memory budget (bytes) of one chunk's complex matrices (H, S, eigenvectors).
 DEFAULT_CHUNK_BYTES = 32 * 2**20
@@ -131,28 +131,37 @@ def _eigh(m):
     return np.linalg.eigh(m)
 
 
-def _solve_chunk(h, s, channels):
-    """Diagonalise one chunk; return eigenvalues and channel weights (or None)."""
+def generalized_eigh(h, s, vectors: bool = True):
+    """Eigenvalues (ascending) and S-orthonormal eigenvectors of H c = E S c, batched.
+
+    ``s=None`` is the orthogonal case. The Cholesky reduction L⁻¹ H L⁻ᴴ keeps the compiled
+    small-matrix solver for real stacks; with ``vectors=False`` the vectors are None.
+    Raises CalculationError when S is not positive definite.
+    """
     if s is None:
         e, c = _eigh(h)
-        if channels is None:
-            return e, None
+        return e, (c if vectors else None)
+    try:
+        chol = np.linalg.cholesky(s)
+    except np.linalg.LinAlgError:
+        raise CalculationError(
+            "the overlap matrix S(k) is not positive definite at some k-point: the overlap "
+            "integrals of the parameter set are too large for this structure (atoms too close?)"
+        ) from None
+    linv = np.linalg.inv(chol)
+    linv_h = np.conj(np.swapaxes(linv, -1, -2))
+    e, y = _eigh(linv @ h @ linv_h)
+    return e, (linv_h @ y if vectors else None)
+
+
+def _solve_chunk(h, s, channels):
+    """Diagonalise one chunk; return eigenvalues and channel weights (or None)."""
+    e, c = generalized_eigh(h, s, vectors=channels is not None)
+    if channels is None:
+        return e, None
+    if s is None:
         w = np.abs(c) ** 2 if np.iscomplexobj(c) else c * c  # (k, orbital, band)
     else:
-        try:
-            chol = np.linalg.cholesky(s)
-        except np.linalg.LinAlgError:
-            raise CalculationError(
-                "the overlap matrix S(k) is not positive definite at some k-point: the overlap "
-                "integrals of the parameter set are too large for this structure (atoms too close?)"
-            ) from None
-        linv = np.linalg.inv(chol)
-        linv_h = np.conj(np.swapaxes(linv, -1, -2))
-        hp = linv @ h @ linv_h
-        e, y = _eigh(hp)
-        if channels is None:
-            return e, None
-        c = linv_h @ y
         w = (np.conj(c) * (s @ c)).real
     # (k, band, orbital) @ (orbital, channel) -> (k, band, channel)
     return e, np.swapaxes(w, 1, 2) @ channels

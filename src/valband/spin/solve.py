@@ -19,8 +19,8 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import NDArray
 
-from valband.errors import CalculationError
 from valband.progress import Progress
+from valband.solve.eigen import generalized_eigh
 
 __all__ = ["Projector", "diagonalise_projected"]
 
@@ -59,22 +59,8 @@ def diagonalise_projected(
         for a in range(0, n_k, step):
             b = min(a + step, n_k)
             h, s = model.hamiltonian_and_overlap(kpoints[a:b])
-            if s is None:
-                e, c = np.linalg.eigh(h)
-                sc = c
-            else:
-                try:
-                    chol = np.linalg.cholesky(s)
-                except np.linalg.LinAlgError:
-                    raise CalculationError(
-                        "the overlap matrix S(k) is not positive definite at some k-point: the "
-                        "overlap integrals are too large for this structure (atoms too close?)"
-                    ) from None
-                linv = np.linalg.inv(chol)
-                linv_h = np.conj(np.swapaxes(linv, -1, -2))
-                e, y = np.linalg.eigh(linv @ h @ linv_h)
-                c = linv_h @ y
-                sc = s @ c
+            e, c = generalized_eigh(h, s)
+            sc = c if s is None else s @ c
             eig[a:b] = e
             if wts is not None:
                 wts[a:b] = _weights(c, sc, projectors)
