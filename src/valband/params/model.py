@@ -87,6 +87,7 @@ class ElementParams:
     onsite: dict[str, float]
     valence_electrons: float
     provenance: dict[str, str]
+    spin_orbit: dict[str, float] = field(default_factory=dict)  # shell → ξ in eV (optional)
 
     @property
     def n_orbitals(self) -> int:
@@ -272,6 +273,11 @@ class ParameterSet:
                     for sh in el.shells
                 },
             }
+            if el.spin_orbit:
+                elements[sym]["spin_orbit"] = {
+                    sh: {"value": v, "source": el.provenance[f"spin_orbit.{sh}"]}
+                    for sh, v in el.spin_orbit.items()
+                }
         return {
             "schema_version": self.schema_version,
             "name": self.name,
@@ -304,6 +310,7 @@ class ParameterSet:
                 sym: {
                     "shells": list(el.shells),
                     "onsite_eV": dict(el.onsite),
+                    "spin_orbit_eV": dict(el.spin_orbit),
                     "valence_electrons": el.valence_electrons,
                     "provenance": dict(el.provenance),
                 }

@@ -238,7 +238,7 @@ def _parse_element(rd: _Reader, sym: str, value: Any) -> ElementParams:
     path: tuple[str | int, ...] = ("elements", sym)
     _check_symbol(rd, sym, path)
     el = rd.table(value, path)
-    rd.keys(el, path, ("shells", "onsite", "valence_electrons"))
+    rd.keys(el, path, ("shells", "onsite", "valence_electrons"), ("spin_orbit",))
 
     shells_raw = el["shells"]
     accepted_shells = 'a non-empty array of distinct shells from "s", "p", "d" in that order'
@@ -286,8 +286,21 @@ def _parse_element(rd: _Reader, sym: str, value: Any) -> ElementParams:
             f"0 < N ≤ {n_max} (two per orbital)",
         )
     provenance["valence_electrons"] = rd.string(entry["source"], vpath + ("source",))
+    spin_orbit: dict[str, float] = {}
+    if "spin_orbit" in el:
+        for sh, raw in rd.table(el["spin_orbit"], path + ("spin_orbit",)).items():
+            spath = path + ("spin_orbit", sh)
+            if sh not in ("p", "d") or sh not in shells:
+                rd.fail(spath, f"spin–orbit constant for shell {sh!r}",
+                        "one entry per p or d shell of the element: "
+                        + (", ".join(x for x in shells if x != "s") or "none (s only)"))
+            entry = rd.table(raw, spath)
+            rd.keys(entry, spath, ("value", "source"))
+            spin_orbit[sh] = rd.number(entry["value"], spath + ("value",), 0.0, 5.0, unit="eV")
+            provenance[f"spin_orbit.{sh}"] = rd.string(entry["source"], spath + ("source",))
     return ElementParams(
-        symbol=sym, shells=shells, onsite=onsite, valence_electrons=n_el, provenance=provenance
+        symbol=sym, shells=shells, onsite=onsite, valence_electrons=n_el, provenance=provenance,
+        spin_orbit=spin_orbit,
     )
 
 

@@ -4,9 +4,9 @@ Order of precedence for each (element, shell):
 
 1. a value given by the caller (``soc={"Pt": 0.6}`` sets ξ_d, or ξ_p for an element without
    a d shell; ``soc={"Pt": {"p": 0.9, "d": 0.6}}`` sets shells explicitly);
-2. a value in the parameter set, if its element record carries one (an optional
-   ``spin_orbit`` mapping shell → eV; format v1 has no such field yet, so today this step
-   finds nothing and says so in the provenance);
+2. a value in the parameter set, if its element record carries one (the optional
+   ``spin_orbit`` table of format v1, shell → ``{value, source}`` in eV; a set without it
+   says so in the provenance);
 3. the free, scalar-relativistic LDA atom of :mod:`valband.atom` (Koelling & Harmon, J. Phys.
    C 10, 3107 (1977)) through :func:`valband.atom.spin_orbit_constant_ev`, in the ground
    configuration with the valence p level added empty when it is not occupied. Using the
