@@ -51,3 +51,11 @@ def test_a_broken_cache_entry_is_ignored(big_set, tmp_path):
     entry.write_bytes(b"not a pickle")
     M._MEMO.clear()
     assert load_parameter_set(big_set).elements    # parsed again from the TOML
+
+
+def test_other_code_never_reads_this_codes_cache(big_set, tmp_path, monkeypatch):
+    load_parameter_set(big_set)
+    monkeypatch.setattr(M, "_CODE_TAG", ["0123456789abcdef"])   # as if the modules changed
+    M._MEMO.clear()
+    load_parameter_set(big_set)
+    assert len(list((tmp_path / "cache" / "params").glob("*.pickle"))) == 2

@@ -346,14 +346,27 @@ def list_parameter_sets() -> list[str]:
 _MEMO: dict[tuple[str, str], ParameterSet] = {}
 
 
-def _cache_file(digest: str) -> Path:
-    import sys
+_CODE_TAG: list[str] = []
 
-    import valband
+
+def _code_tag() -> str:
+    """Hash of the modules that define a parsed set (a pickle from other code is never used)."""
+    if not _CODE_TAG:
+        import hashlib
+        import sys
+
+        h = hashlib.sha256(f"py{sys.version_info.major}.{sys.version_info.minor}".encode())
+        here = Path(__file__).resolve().parent
+        for name in ("model.py", "laws.py", "schema.py"):
+            h.update((here / name).read_bytes())
+        _CODE_TAG.append(h.hexdigest()[:16])
+    return _CODE_TAG[0]
+
+
+def _cache_file(digest: str) -> Path:
     from valband.cache import cache_root
 
-    tag = f"{valband.__version__}-py{sys.version_info.major}{sys.version_info.minor}"
-    return cache_root() / "params" / f"{digest}-{tag}.pickle"
+    return cache_root() / "params" / f"{digest}-{_code_tag()}.pickle"
 
 
 def _read_file(path: Path) -> ParameterSet:
@@ -361,8 +374,8 @@ def _read_file(path: Path) -> ParameterSet:
 
     A large first-principles set takes about a second to parse and validate; the validated
     set is kept as a pickle in the user cache (:mod:`valband.cache`), keyed by the SHA-256 of
-    the file's bytes, the valband version and the Python version, so an edited file, a new
-    valband or another Python never sees a stale entry. A cache that cannot be read or
+    the file's bytes and a hash of the defining modules' source and the Python version, so an
+    edited file, changed code or another Python never sees a stale entry. A cache that cannot be read or
     written is ignored (the set is parsed as usual).
     """
     import hashlib
