@@ -375,8 +375,8 @@ def _read_file(path: Path) -> ParameterSet:
     A large first-principles set takes about a second to parse and validate; the validated
     set is kept as a pickle in the user cache (:mod:`valband.cache`), keyed by the SHA-256 of
     the file's bytes and a hash of the defining modules' source and the Python version, so an
-    edited file, changed code or another Python never sees a stale entry. A cache that cannot be read or
-    written is ignored (the set is parsed as usual).
+    edited file, changed code or another Python never sees a stale entry. A cache that cannot
+    be read or written is ignored (the set is parsed as usual).
     """
     import hashlib
     import pickle
