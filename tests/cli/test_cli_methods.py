@@ -77,3 +77,15 @@ def test_bands_with_spin_orbit(capsys):
     rows = [ln for ln in text if not ln.startswith("#")]
     bands = {int(r.split(",")[4]) for r in rows[1:]}
     assert len(bands) == 18
+
+
+def test_slab_descriptors_by_layer_surface_first(capsys):
+    # the surface layer's d band is narrower than the central layer's (lower coordination:
+    # second-moment argument, common practice)
+    s = _summary(capsys, "describe", "slab Pt fcc111 layers=5", "--mesh", "6x6x1")
+    groups = s["layers"]["groups"]
+    names = [g["group"] for g in groups]
+    assert names[0] == "surface" and "centre" in names
+    assert s["layers"]["window_eV"] == s["descriptors"][0]["window_eV"]
+    by = {g["group"]: g for g in groups}
+    assert by["surface"]["width"] < by["centre"]["width"]

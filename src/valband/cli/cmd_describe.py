@@ -24,15 +24,22 @@ def add_arguments(p) -> None:
 
 def run(args) -> int:
     """Compute and print the descriptor table (and write files if --out is given)."""
-    from valband.cli.common import load_model_with_info, method_dos
+    from valband.cli.common import layer_block, load_model_with_info, method_dos, print_layer_table
     from valband.errors import SettingsError
     from valband.jobs import dos_job
 
     model, info = load_model_with_info(args)
     pre, record = method_dos(args, model, info)
+    if pre is None and info.get("kind") in ("slab", "overlayer"):
+        from valband.workflows import compute_dos
+
+        pre = compute_dos(model, dos_settings(args), progress=not args.quiet)
+    layers = layer_block(pre, info, args.shell, window_of(args)) if pre is not None else None
+    extra = ({"method": record} if record else {}) | (
+        {"layers": layers.to_dict()} if layers else {})
     summary, dos, table = dos_job(model, dos_settings(args), args.out, window_of(args), args.shell,
                                   args.format, progress=not args.quiet, command="describe",
-                                  dos=pre, extra={"method": record} if record else None)
+                                  dos=pre, extra=extra or None)
     if table is None:
         raise SettingsError(f"{model.structure.formula} has no {args.shell} shell in this parameter set")
     if args.json:
@@ -40,4 +47,6 @@ def run(args) -> int:
     else:
         print(f"{model.structure.formula}: E_F = {dos.fermi_level:.4f} eV (model scale)")
         print_descriptor_table(table)
+        if layers is not None:
+            print_layer_table(layers)
     return 0

@@ -26,14 +26,21 @@ def add_arguments(p) -> None:
 
 def run(args) -> int:
     """Compute, write, print."""
-    from valband.cli.common import load_model_with_info, method_dos
+    from valband.cli.common import layer_block, load_model_with_info, method_dos, print_layer_table
     from valband.jobs import dos_job
 
     model, info = load_model_with_info(args)
     pre, record = method_dos(args, model, info)
+    if pre is None and info.get("kind") in ("slab", "overlayer"):
+        from valband.workflows import compute_dos
+
+        pre = compute_dos(model, dos_settings(args), progress=not args.quiet)
+    layers = layer_block(pre, info, args.shell, window_of(args)) if pre is not None else None
+    extra = ({"method": record} if record else {}) | (
+        {"layers": layers.to_dict()} if layers else {})
     summary, dos, table = dos_job(model, dos_settings(args), args.out, window_of(args), args.shell,
                                   args.format, progress=not args.quiet,
-                                  dos=pre, extra={"method": record} if record else None)
+                                  dos=pre, extra=extra or None)
     if args.json:
         print_json(summary)
     elif not args.quiet:
@@ -41,5 +48,7 @@ def run(args) -> int:
               f"{dos.n_electrons:g} electrons, DOS(E_F) = {dos.value_at_fermi():.3f} states/eV/cell")
         if table is not None:
             print_descriptor_table(table)
+        if layers is not None:
+            print_layer_table(layers)
         print(f"wrote {args.out}/", file=sys.stderr)
     return 0

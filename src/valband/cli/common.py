@@ -8,7 +8,7 @@ import sys
 __all__ = [
     "add_model_arguments", "add_dos_arguments", "add_output_arguments",
     "load_model", "load_model_with_info", "add_depth_arguments", "depth_weights_of",
-    "add_method_arguments", "method_dos",
+    "add_method_arguments", "method_dos", "layer_block", "print_layer_table",
     "dos_settings", "print_json", "window_of",
 ]
 
@@ -101,6 +101,32 @@ def method_dos(args, model, info):
         alloy=args.alloy_method, neutral=args.neutral, soc=args.soc, magnetic=args.magnetic,
         stoner=_pairs(args.stoner, "--stoner"), initial_moment=args.initial_moment,
         order=args.order, progress=not (args.quiet or getattr(args, "json", False)))
+
+
+def layer_block(dos, info, shell: str, window=None):
+    """Layer/group descriptors of a slab or overlayer (surface first), or None for bulk."""
+    if info.get("kind") not in ("slab", "overlayer") or dos.n_sites != len(info.get("depth", ())):
+        return None
+    from valband.alloy import layer_descriptors
+    from valband.workflows.describe import DEFAULT_WINDOW
+
+    if window is None:   # the same default window as the element and site descriptors
+        window = (max(float(dos.energies[0]), DEFAULT_WINDOW[0]),
+                  min(float(dos.energies[-1]), DEFAULT_WINDOW[1]))
+    return layer_descriptors(dos, info, shell, window)
+
+
+def print_layer_table(table, out=None) -> None:
+    """Surface-first table of the group descriptors of a slab."""
+    out = out or sys.stdout
+    print(f"{table.shell}-band descriptors by layer group (eV relative to E_F; surface first)",
+          file=out)
+    print(f"  {'group':12s} {'sites':>10s} {'centre':>8s} {'width':>7s} {'filling':>8s} "
+          f"{'upper edge':>10s}", file=out)
+    for name, d in table.groups.items():
+        sites = ",".join(str(i) for i in table.sites[name])
+        print(f"  {name:12s} {sites:>10s} {d.centre:8.3f} {d.width:7.3f} {d.filling:8.3f} "
+              f"{d.upper_edge:10.3f}", file=out)
 
 
 def add_output_arguments(p: argparse.ArgumentParser, default_out: str | None) -> None:
