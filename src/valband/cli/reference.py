@@ -1,6 +1,7 @@
 """The command reference, generated from the CLI's own ``--help`` so that it cannot drift.
 
-``python -m valband.cli.reference > docs/commands.md`` regenerates ``docs/commands.md``; a test
+``python -m valband.cli.reference > docs/commands.md`` regenerates ``docs/commands.md`` (with the
+campaign file format appended from :mod:`valband.campaign`); a test
 checks the committed file against this output (exactly when the Python minor version is the
 one that generated it — argparse's layout changes between versions — and otherwise option by
 option).
@@ -55,7 +56,19 @@ def reference_markdown() -> str:
     for name in COMMANDS:
         parts += _sections(f"valband {name}", sub.choices[name])
     parts.append(_EXIT_CODES)
+    parts += _campaign_format()
     return "\n".join(parts)
+
+
+def _campaign_format() -> list[str]:
+    """Render the campaign file format of ``valband screen`` from its package docstring."""
+    import inspect
+
+    import valband.campaign
+
+    return ["", "## Campaign file format (`valband screen`)", "",
+            "From the docstring of `valband.campaign` (examples in `examples/campaigns/`).", "",
+            "```text", inspect.cleandoc(valband.campaign.__doc__ or "").rstrip(), "```", ""]
 
 
 if __name__ == "__main__":  # pragma: no cover
