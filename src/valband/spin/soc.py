@@ -12,7 +12,8 @@ Order of precedence for each (element, shell):
    configuration with the valence p level added empty when it is not occupied, and the
    MacDonald–Vosko relativistic exchange (the default of a scalar-relativistic atom). Using the
    free-atom ξ in the solid is common practice (it changes by a few per cent on
-   compression); (5/2)ξ_d agrees with the NIST SRD 141 relativistic d splittings within 1 %.
+   compression); (5/2)ξ_d agrees with the NIST SRD 141 relativistic d splittings within 1.5 %
+   (Cu −0.15 %, Ag −0.41 %, Au −1.33 %).
 """
 
 from __future__ import annotations
