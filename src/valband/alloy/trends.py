@@ -143,6 +143,8 @@ class TrendCase:
     strains : biaxial strains (fractions) for ``strain``
     published : the published value (eV; eV per % for strain), tolerance : ± (eV)
     source : citation; note : how the value is known (e.g. "from memory")
+    ci_density : k-point density (Å) of the fast CI test where the default coarse one would
+        change the verdict (None: the test's default)
     """
 
     id: str
@@ -158,6 +160,7 @@ class TrendCase:
     substitute: Mapping[str, object] = field(default_factory=dict)
     strains: tuple[float, ...] = ()
     note: str = ""
+    ci_density: float | None = None
 
     def agrees(self, value: float) -> bool:
         """Same sign as the published value (if it is not zero) and within the tolerance."""
