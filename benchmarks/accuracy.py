@@ -288,7 +288,7 @@ def render(data: dict) -> str:
     out += ["", f"Wall time of the run (one process): {rt['total']:.0f} s (metals "
                 f"{rt['metals']:.0f} s, trends {rt['trends']:.0f} s, each trend also at the "
                 "coarse mesh of the CI tests).", ""]
-    return "\n".join(out)
+    return "\n".join(out).strip("\n")
 
 
 def splice(readme_text: str, section: str) -> str:

@@ -115,8 +115,11 @@ def test_the_rule_neutralises_alloys_and_slabs_but_not_pure_bulk(params):
 def test_mesh_rule_matches_the_program_default_on_fcc_cu_and_is_flat_on_slabs():
     # density 50 Å puts the program's default 24 points on primitive fcc Cu (mesh_for docstring)
     assert mesh_for(build_structure("Cu fcc")) == (24, 24, 24)
+    # the (111) surface net of fcc has a_s = a/√2 and reciprocal vectors of length
+    # (2π)·2/(√3 a_s) (hexagonal net; geometry): round(50 · 2√2/(√3 · 3.61)) = 23 for Cu
     n = mesh_for(build_from_spec("slab Cu fcc111 layers=3")[0], 50.0, slab=True)
-    assert n[2] == 1 and n[0] == n[1] == 24
+    want = round(50.0 * 2.0 * np.sqrt(2.0) / (np.sqrt(3.0) * 3.61))
+    assert n == (want, want, 1)
 
 
 def test_bad_case_tables_are_refused_by_name():
