@@ -60,7 +60,9 @@ KNOWN = {
         "Cu/Pt(111)": "model +0.88 (plain +1.44) vs published +0.2 ± 0.2: right sign, four "
                       "times the size",
         "Pt-Ni-Pt(111)": "model +0.06 (plain -0.05) vs published -0.35 ± 0.25: the "
-                         "subsurface-Ni downshift of surface Pt is missing",
+                         "subsurface-Ni downshift of surface Pt is missing; its d width narrows "
+                         "(1.75 -> 1.66 eV, neutral) where the ligand effect broadens it, as "
+                         "Pt-Ni ddσ at 2.77 Å is -0.42 eV against Pt-Pt -0.87 eV",
         "Pt-Co-Pt(111)": "model -0.06 (plain -0.30) vs published -0.4 ± 0.25: far too small "
                          "once the layers are neutral",
     },
