@@ -17,11 +17,10 @@ Centre = first moment of the group's d partial DOS per atom over the descriptor 
 (:data:`valband.workflows.describe.DEFAULT_WINDOW`, eV relative to E_F).
 
 Charge self-consistency
-    :func:`trend_dos` applies the rule the program is adopting as its default: local charge
-    neutrality per site (:func:`valband.alloy.neutral_dos`, mode ``"site"``) on every
-    structure that is not a single element with all sites symmetry-equivalent; a pure bulk
-    metal is computed as it is. It is the one place that decides, so it can be replaced by the
-    program's default entry once that exists.
+    :func:`trend_dos` runs the program's default entry
+    (:func:`valband.workflows.methods.dos_by_method` with ``neutral="auto"``): local charge
+    neutrality per site on every structure that is not a single element with all sites
+    symmetry-equivalent; a pure bulk metal is computed as it is.
 
 k-meshes
     :func:`mesh_for` gives n_i = max(1, round(density · |b_i| / 2π)) points along reciprocal
@@ -64,23 +63,22 @@ DEFAULT_DENSITY = 50.0
 # the charge-self-consistency rule and the DOS
 # ------------------------------------------------------------------------------------------
 def needs_neutrality(structure) -> bool:
-    """Whether the default rule applies site neutrality: not (one element, all sites alike)."""
-    from valband.kspace.symmetry import equivalent_sites
+    """Whether the program's default rule applies site neutrality (its ``neutral="auto"``)."""
+    from valband.workflows.methods import neutrality_choice
 
-    if len(set(structure.symbols)) > 1:
-        return True
-    return len(set(equivalent_sites(structure).tolist())) > 1
+    return neutrality_choice(structure, "auto")[0] is not None
 
 
 def trend_dos(model, settings, params, neutral: bool | None = None):
-    """DOS under the charge-self-consistency rule: ``(DOSResult, record)``.
+    """DOS under the program's charge-self-consistency rule: ``(DOSResult, record)``.
 
     Parameters
     ----------
     model : TBModel
     settings : DOSSettings
     params : ParameterSet the model was built from (valence counts of the neutrality targets)
-    neutral : None (the rule, :func:`needs_neutrality`), True (site neutrality) or False (plain)
+    neutral : None (the default rule, :func:`valband.workflows.methods.neutrality_choice`),
+        True (site neutrality) or False (plain)
 
     Returns
     -------
@@ -88,19 +86,21 @@ def trend_dos(model, settings, params, neutral: bool | None = None):
         The record names the method (``"plain"`` or ``"site neutrality"``), iterations, the
         largest residual (electrons per site) and the site shifts (eV).
     """
-    from valband.alloy.neutrality import neutral_dos
-    from valband.workflows import compute_dos
+    from valband.workflows.methods import dos_by_method
 
-    use = needs_neutrality(model.structure) if neutral is None else bool(neutral)
-    if not use:
-        return compute_dos(model, settings), {"method": "plain"}
-    dos, rep = neutral_dos(model, settings, "site", None, params=params)
+    choice = "auto" if neutral is None else ("site" if neutral else "off")
+    dos, rec = dos_by_method(model, {"kind": "trend"}, settings, params=params, neutral=choice)
+    neu = rec["neutrality"]
+    if neu["mode"] is None:
+        return dos, {"method": "plain"}
+    report = rec["report"]
     return dos, {
         "method": "site neutrality",
-        "iterations": rep.iterations,
-        "max_residual": rep.max_residual,
-        "site_shifts_eV": [round(float(v), 5) for v in rep.site_shifts],
-        "initial_max_residual": max(abs(v) for v in rep.initial_residuals.values()),
+        "iterations": neu["iterations"],
+        "max_residual": neu["max_residual_per_site"],
+        "final_mesh_max_residual": neu.get("final_mesh_max_residual_per_site"),
+        "site_shifts_eV": [round(float(v), 5) for v in report["site_shifts_eV"]],
+        "initial_max_residual": max(abs(v) for v in report["initial_residuals_per_site"].values()),
     }
 
 
