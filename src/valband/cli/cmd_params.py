@@ -3,7 +3,8 @@
 ``valband params generate EL1 EL2 …`` writes a two-centre set for the elements and all their
 pairs (:mod:`valband.twocentre.generate`); ``valband params show SET`` summarises a set;
 ``valband params fit SET REFERENCE --structure SPEC --out DIR`` refines a set against reference
-band energies (:mod:`valband.params.fitting`).
+band energies (:mod:`valband.params.fitting`); ``valband params orthogonal SET --out FILE.toml``
+fits an orthogonal counterpart of a set to its bands (:mod:`valband.params.orthogonal`).
 """
 
 from __future__ import annotations
@@ -81,6 +82,25 @@ def add_arguments(p) -> None:
                    help="residual evaluations allowed (default 400)")
     f.add_argument("--format", default="png", choices=["png", "svg"], help="plot format")
     f.add_argument("--json", action="store_true", help="print the report as JSON")
+
+
+    o = sub.add_parser("orthogonal", help="fit an orthogonal counterpart of a set to its bands "
+                       "(for CPA and fast KPM)",
+                       description="Fit an orthogonal s p d set to the band energies of a "
+                       "(non-orthogonal) set on its absolute energy scale: like pairs fitted "
+                       "per element on fcc/bcc/hcp crystals at several strains, unlike pairs "
+                       "from a combination rule (valband.params.orthogonal).")
+    o.add_argument("set", metavar="SET", help="source set: shipped name or .toml path")
+    o.add_argument("--out", required=True, metavar="FILE.toml", help="file to write")
+    o.add_argument("--name", default=None, help="name of the new set (default SET-orth)")
+    o.add_argument("--elements", default=None, metavar="EL1,EL2,...",
+                   help="only these elements and their pairs (default: all of the source)")
+    o.add_argument("--mesh", type=int, default=None,
+                   help="Γ-centred k-mesh per axis of every fitted crystal (default 6)")
+    o.add_argument("--max-evaluations", type=int, default=None,
+                   help="residual evaluations per element (default 60)")
+    o.add_argument("--json", action="store_true", help="print the fit quality as JSON")
+    o.add_argument("--quiet", action="store_true", help="no progress messages")
 
 
 def _pairs_of(option: str, items: list[str], shells: bool) -> dict:
@@ -361,6 +381,63 @@ def _print_fit(result, set_path, plot) -> None:
     print(f"refined set: {set_path}\nplot: {plot}")
 
 
+def _orthogonal(args) -> int:
+    import json
+    from pathlib import Path
+
+    from valband.errors import SettingsError
+    from valband.output import atomic_write
+    from valband.params import ParameterSet, dumps, load_parameter_set
+    from valband.params.orthogonal import OrthogonalFitSettings, fit_orthogonal_set
+
+    out = Path(args.out)
+    if out.suffix != ".toml":
+        raise SettingsError(f"--out {out}: accepted: a file name ending in .toml")
+    source = load_parameter_set(args.set)
+    kw = {}
+    if args.mesh is not None:
+        kw["mesh"] = args.mesh
+    if args.max_evaluations is not None:
+        kw["max_evaluations"] = args.max_evaluations
+    settings = OrthogonalFitSettings(**kw)
+    els = None
+    if args.elements:
+        els = [e.strip() for e in args.elements.split(",") if e.strip()]
+    words = ["valband", "params", "orthogonal", args.set, "--out", args.out]
+    for opt in ("name", "elements", "mesh", "max_evaluations"):
+        value = getattr(args, opt)
+        if value is not None:
+            words += [f"--{opt.replace('_', '-')}", str(value)]
+    command = " ".join(shlex.quote(w) for w in words)
+
+    def progress(msg: str) -> None:
+        if not args.quiet:
+            print(f"  {msg}", file=sys.stderr, flush=True)
+
+    result = fit_orthogonal_set(source, els, settings, name=args.name, command=command,
+                                progress=progress)
+    ParameterSet.from_dict(result.data, origin=str(out))  # validate before writing
+    with atomic_write(out) as fh:
+        fh.write(dumps(result.data))
+    ps = result.parameter_set
+    if args.json:
+        print(json.dumps({"schema": JSON_SCHEMA, "file": str(out), "name": ps.name,
+                          "seconds": result.seconds, "quality": result.quality()}, indent=2))
+        return 0
+    print(f"wrote {out}: orthogonal set {ps.name!r}, {len(ps.elements)} elements, "
+          f"{len(ps.pairs)} pairs, {result.seconds:.0f} s")
+    print("band rms in the window E_F-10..E_F+3 eV (eV): element fitted held-out max-held-out")
+    for el, q in result.quality().items():
+        print(f"  {el:3s} {q['rms_window_fit']:8.3f} {q['rms_window_check']:8.3f} "
+              f"{q['max_window_check']:8.3f}")
+    if not source.orthogonal:
+        print(f"to let {source.name} name it, add to its top level: "
+              f"orthogonal_counterpart = \"{out.name}\" (a path relative to the set's file) "
+              "or the shipped name")
+    return 0
+
+
 def run(args) -> int:
-    """Dispatch to generate, show or fit."""
-    return {"generate": _generate, "show": _show, "fit": _fit}[args.params_command](args)
+    """Dispatch to generate, show, fit or orthogonal."""
+    return {"generate": _generate, "show": _show, "fit": _fit,
+            "orthogonal": _orthogonal}[args.params_command](args)
