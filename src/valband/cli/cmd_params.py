@@ -99,6 +99,11 @@ def add_arguments(p) -> None:
                    help="Γ-centred k-mesh per axis of every fitted crystal (default 6)")
     o.add_argument("--max-evaluations", type=int, default=None,
                    help="residual evaluations per element (default 60)")
+    o.add_argument("--pair-threshold", type=float, default=None, metavar="EV",
+                   help="refit unlike pairs whose combination rule misses the source's compound "
+                   "bands by more than this RMS (default 0.35 eV)")
+    o.add_argument("--rule-only", action="store_true",
+                   help="no pair refits: every unlike pair from the combination rule")
     o.add_argument("--json", action="store_true", help="print the fit quality as JSON")
     o.add_argument("--quiet", action="store_true", help="no progress messages")
 
@@ -399,15 +404,21 @@ def _orthogonal(args) -> int:
         kw["mesh"] = args.mesh
     if args.max_evaluations is not None:
         kw["max_evaluations"] = args.max_evaluations
+    if args.pair_threshold is not None:
+        kw["pair_threshold"] = args.pair_threshold
+    if args.rule_only:
+        kw["pair_threshold"] = None
     settings = OrthogonalFitSettings(**kw)
     els = None
     if args.elements:
         els = [e.strip() for e in args.elements.split(",") if e.strip()]
     words = ["valband", "params", "orthogonal", args.set, "--out", args.out]
-    for opt in ("name", "elements", "mesh", "max_evaluations"):
+    for opt in ("name", "elements", "mesh", "max_evaluations", "pair_threshold"):
         value = getattr(args, opt)
         if value is not None:
             words += [f"--{opt.replace('_', '-')}", str(value)]
+    if args.rule_only:
+        words.append("--rule-only")
     command = " ".join(shlex.quote(w) for w in words)
 
     def progress(msg: str) -> None:
@@ -422,7 +433,9 @@ def _orthogonal(args) -> int:
     ps = result.parameter_set
     if args.json:
         print(json.dumps({"schema": JSON_SCHEMA, "file": str(out), "name": ps.name,
-                          "seconds": result.seconds, "quality": result.quality()}, indent=2))
+                          "seconds": result.seconds, "quality": result.quality(),
+                          "pairs": {k: p.to_dict() for k, p in result.pairs.items()}},
+                         indent=2))
         return 0
     print(f"wrote {out}: orthogonal set {ps.name!r}, {len(ps.elements)} elements, "
           f"{len(ps.pairs)} pairs, {result.seconds:.0f} s")
@@ -430,6 +443,10 @@ def _orthogonal(args) -> int:
     for el, q in result.quality().items():
         print(f"  {el:3s} {q['rms_window_fit']:8.3f} {q['rms_window_check']:8.3f} "
               f"{q['max_window_check']:8.3f}")
+    refit = [p for p in result.pairs.values() if p.fitted]
+    print(f"unlike pairs: {len(result.pairs)} checked on B2/L1_2 compounds, {len(refit)} refitted"
+          + (f" (rule rms > {settings.pair_threshold:g} eV)" if settings.pair_threshold is not None
+             else ""))
     if not source.orthogonal:
         print(f"to let {source.name} name it, add to its top level: "
               f"orthogonal_counterpart = \"{out.name}\" (a path relative to the set's file) "
