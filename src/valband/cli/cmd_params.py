@@ -226,6 +226,11 @@ def _show_summary(ps) -> dict:
             record = json.loads(ps.provenance[len(PROVENANCE_PREFIX):].split(" | ", 1)[0])
         except json.JSONDecodeError:
             record = None
+    elif ps.provenance.startswith("{"):  # e.g. valband params orthogonal writes a JSON record
+        try:
+            record = json.loads(ps.provenance)
+        except json.JSONDecodeError:
+            record = None
     pairs = {}
     for p in ps.pairs.values():
         ranges = [x for x in (_range_of(law) for law in p.hopping.values()) if x]
@@ -240,6 +245,7 @@ def _show_summary(ps) -> dict:
         "schema": JSON_SCHEMA, "schema_version": 1,
         "name": ps.name, "version": ps.version, "origin": ps.origin,
         "description": ps.description, "orthogonal": ps.orthogonal,
+        "orthogonal_counterpart": ps.orthogonal_counterpart,
         "elements": {el: {"shells": d["shells"], "onsite_eV": d["onsite_eV"],
                           "valence_electrons": d["valence_electrons"]}
                      for el, d in summary["elements"].items()},
@@ -260,6 +266,8 @@ def _show(args) -> int:
     kind = "orthogonal" if s["orthogonal"] else "non-orthogonal"
     print(f"{s['name']} (version {s['version']}), {kind}; {s['origin']}")
     print(f"  {s['description']}")
+    if s["orthogonal_counterpart"]:
+        print(f"  orthogonal counterpart: {s['orthogonal_counterpart']}")
     print(f"elements ({len(s['elements'])}):  onsite energies in eV")
     for el, d in s["elements"].items():
         onsite = "  ".join(f"{sh} {v:8.3f}" for sh, v in d["onsite_eV"].items())
@@ -292,6 +300,16 @@ def _show(args) -> int:
         if q:
             print(f"  quadrature: {q.get('n_radial')} radial x {q.get('n_angular')} angular "
                   "points per centre")
+        if isinstance(prov.get("band_rms_eV"), dict):  # an orthogonal counterpart's fit
+            src = prov.get("source_set", {})
+            print(f"  fitted to the bands of {src.get('name')} in {prov.get('seconds')} s; band "
+                  "rms (eV, E_F-10..+3 eV, fitted / held-out strains):")
+            print("   " + ", ".join(f"{el} {q['window_fit']:.2f}/{q['window_held_out']:.2f}"
+                                    for el, q in prov["band_rms_eV"].items()))
+            up = prov.get("unlike_pairs", {})
+            if isinstance(up, dict):
+                print(f"  unlike pairs: {up.get('rule')}; {len(up.get('refitted', {}))} "
+                      f"refitted to compounds (rule rms > {up.get('refit_above_eV')} eV)")
         conf = prov.get("confinement", {})
         for el, c in list(conf.items())[:20]:
             radii = ", ".join(f"{sh} {v:.2f}" for sh, v in c.get("r0_orbitals_bohr", {}).items())
