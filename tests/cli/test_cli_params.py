@@ -190,3 +190,11 @@ def test_orthogonal_bad_input(capsys, argv, message):
     code, _, err = run(capsys, "params", "orthogonal", *argv, "--quiet")
     assert code == 1
     assert message in err and "valband params: error:" in err
+
+
+def test_show_names_the_counterpart_and_its_fit(capsys):
+    code, out, _ = run(capsys, "params", "show", "valband-tc-2026")
+    assert code == 0 and "orthogonal counterpart: valband-tc-2026-orth" in out
+    code, out, _ = run(capsys, "params", "show", "valband-tc-2026-orth")
+    assert code == 0 and "fitted to the bands of valband-tc-2026" in out
+    assert "refitted to compounds" in out
