@@ -485,7 +485,7 @@ def load_parameter_set(name_or_path: str | Path) -> ParameterSet:
 
 
 def orthogonal_counterpart(params: ParameterSet | str | Path) -> ParameterSet:
-    """The orthogonal set to use in place of ``params`` (CPA, fast KPM).
+    """Return the orthogonal set to use in place of ``params`` (CPA, fast KPM).
 
     An orthogonal set is its own counterpart. A non-orthogonal set names its counterpart with
     the optional top-level key ``orthogonal_counterpart`` (a shipped set name, or a ``.toml``

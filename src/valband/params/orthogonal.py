@@ -486,7 +486,7 @@ def _power(law: dict, r: float) -> float:
 
 def combine_pair(a: str, b: str, fits: dict[str, ElementFit], shells: dict[str, Sequence[str]],
                  settings: OrthogonalFitSettings | None = None) -> dict[str, Any]:
-    """The ``[pairs."A-B"]`` table of an unlike pair from the combination rule (module docstring).
+    """Build the ``[pairs."A-B"]`` table of an unlike pair by the combination rule (see module).
 
     Parameters
     ----------
@@ -779,8 +779,12 @@ def fit_pair(source: ParameterSet, data: dict[str, Any], a: str, b: str,
     """
     from scipy.optimize import least_squares
 
-    from valband.params.fitting import BandEvaluator, FitSettings, adjusted_parameter_dict
-    from valband.params.fitting import model_bands
+    from valband.params.fitting import (
+        BandEvaluator,
+        FitSettings,
+        adjusted_parameter_dict,
+        model_bands,
+    )
 
     s = settings or OrthogonalFitSettings()
     t0 = time.perf_counter()
