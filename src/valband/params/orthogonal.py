@@ -579,6 +579,17 @@ class OrthogonalFitResult:
                 for el, f in self.fits.items()}
 
 
+def _origin_text(ps: ParameterSet) -> str | None:
+    """``"shipped"`` for a set from valband's data folder (no machine path), else its file."""
+    from pathlib import Path
+
+    from valband.params.model import _data_dir
+
+    if ps.origin and Path(ps.origin).resolve().parent == _data_dir().resolve():
+        return "shipped"
+    return ps.origin
+
+
 def fit_orthogonal_set(
     source: ParameterSet,
     elements: Sequence[str] | None = None,
@@ -655,7 +666,7 @@ def fit_orthogonal_set(
         "made_by": "valband.params.orthogonal.fit_orthogonal_set",
         "command": command,
         "source_set": {"name": source.name, "version": source.version,
-                       "origin": source.origin},
+                       "origin": _origin_text(source)},
         "settings": dataclasses.asdict(s),
         "seconds": round(seconds, 1),
         "band_rms_eV": {el: {"window_fit": round(f.rms_window_fit, 4),
