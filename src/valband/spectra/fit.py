@@ -621,7 +621,7 @@ def fit_spectrum(measured: MeasuredSpectrum, dos: DOSResult, photon_energy=None,
     if is_free["d_offset"]:   # coarse scan of the d-band offset at the best shift
         d_lo, d_hi = bounds["d_offset"]
         best = None
-        for dv in np.arange(d_lo, d_hi + 0.025, 0.05):
+        for dv in np.arange(d_lo, d_hi + 0.05, 0.1):
             cand = linear_solve(p0 | {"d_offset": float(dv)})
             c2 = chi2_of(cand)
             if best is None or c2 < best[0]:
