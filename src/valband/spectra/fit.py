@@ -38,9 +38,11 @@ d-band offset δ_d (``d_offset``): the d groups' pDOS is moved by δ_d to higher
 *before* the Fermi–Dirac occupation and the broadening, i.e. relative to the s, p groups and to
 the Fermi edge, which stays fixed — the quantity of interest once the edge was calibrated (then
 ``compare`` fits δ_d instead of the global shift). It acts on top of the photoemission d-band
-correction (:mod:`valband.spectra.quasiparticle`, on by default, ``d_correction``). Weighted least squares
-(:func:`scipy.optimize.least_squares`, trust-region reflective with bounds) on
-r_i = (y_i − model_i)/σ_i with σ the measured uncertainty (Poisson √counts, at least 1) when the
+correction (:mod:`valband.spectra.quasiparticle`, on by default, ``d_correction``). It starts
+from a coarse scan (0.1 eV steps) with the linear parameters solved at each step.
+
+Weighted least squares (:func:`scipy.optimize.least_squares`, trust-region reflective with
+bounds) on r_i = (y_i − model_i)/σ_i with σ the measured uncertainty (Poisson √counts, at least 1) when the
 spectrum has one, else σ = 1 and the covariance scaled by the reduced χ². The shift starts from
 the best point of a coarse scan over its bounds (linear parameters solved at each step), so a
 calibration offset of an electronvolt or so is found without an initial guess.
