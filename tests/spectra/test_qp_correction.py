@@ -134,3 +134,15 @@ def test_spin_orbit_dos_has_the_same_channel_labels():
     np.testing.assert_allclose(
         sum(newj.channels[i] for i, c in enumerate(newj.channel_labels) if c.shell == "d"),
         new.channels[d].sum(axis=0), atol=1e-9)
+
+
+def test_a_correction_fitted_with_spin_orbit_warns_on_a_plain_dos():
+    # constants fitted on spin–orbit bands (as Ag's and Au's are): a DOS without it is warned
+    from valband.spectra.simulate import resolve_d_correction
+
+    dos = _toy_dos()
+    fitted_soc = QPCorrection("Cu", -0.4, 1.0, "x", "", spin_orbit=True)
+    _, rec = resolve_d_correction(dos, {"Cu": fitted_soc})
+    assert "spin–orbit on" in rec["caution"] and "caution" in describe_record(rec)
+    _, rec = resolve_d_correction(dos, {"Cu": QPCorrection("Cu", -0.4, 1.0, spin_orbit=False)})
+    assert "caution" not in rec

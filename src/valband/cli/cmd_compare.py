@@ -152,6 +152,10 @@ def run(args) -> int:
         for name, par in fit.parameters.items():
             err = f" ± {par.error:.3g}" if par.error is not None else " (fixed)"
             print(f"  {name:14s} {par.value:12.5g}{err}  {par.unit}")
+        dp = fit.parameters.get("d_offset")
+        if dp is not None and dp.free:
+            print(f"  d-band offset (d against s, p and the {'calibrated' if cal else 'fitted'} "
+                  f"edge; + = deeper): {dp.value:+.3f} ± {dp.error:.3f} eV")
         print(f"  χ² {fit.chi2:.5g}, reduced χ² {fit.reduced_chi2:.4g} (dof {fit.dof}), "
               f"R-factor {fit.r_factor:.4g}")
         bc = fit.band_centre

@@ -258,7 +258,6 @@ class _Model:
         self.grid = full_grid[out_range[0]:out_range[1]]
         self.h = float(full_grid[1] - full_grid[0])
         self.d_rows = tuple(d_rows)
-        self.nd_rows = tuple(i for i in range(raw.shape[0]) if i not in self.d_rows)
         self.d_pre, self.occ, self.embed = d_pre, occ, embed
         self._lorentz: dict = {}
         self._cache: dict = {}
@@ -287,8 +286,8 @@ class _Model:
                   d_off: float = 0.0) -> NDArray:
         """Broadened curves on the output grid: (n_groups, n) or, summed, (1, n); cached.
 
-        The Lorentzian is cached on (Γ₀, a) for the groups the d-band offset does not move and
-        on (Γ₀, a, δ) for the others, so changing the Gaussian width or the shift reuses it.
+        The Lorentzian is cached on (Γ₀, a, δ), so changing the Gaussian width or the shift
+        reuses it.
         keep_area=False: weight spread beyond the grid is not observed.
         """
         key = (fwhm, g0, a, per_group, d_off)
@@ -296,19 +295,16 @@ class _Model:
         if got is None:
             if len(self._lorentz) > 24:
                 self._lorentz.clear()
-            parts = np.zeros((self.raw.shape[0], self.grid.size))
-            for rows, lkey, make in (
-                    (self.nd_rows, ("nd", g0, a), lambda: self.raw[list(self.nd_rows)]),
-                    (self.d_rows, ("d", g0, a, d_off), lambda: self._raw_d(d_off))):
-                if not rows:
-                    continue
-                lor = self._lorentz.get(lkey)
-                if lor is None:
-                    lor = self._lor(make(), g0, a)
-                    self._lorentz[lkey] = lor
-                parts[list(rows)] = lor
-            if not per_group:
-                parts = parts.sum(axis=0, keepdims=True)
+            lkey = (g0, a, d_off, per_group)
+            parts = self._lorentz.get(lkey)
+            if parts is None:
+                src = self.raw
+                if self.d_rows and d_off != 0.0:
+                    src = src.copy()
+                    src[list(self.d_rows)] = self._raw_d(d_off)
+                # summed over the groups before the O(n²) Lorentzian unless asked per group
+                parts = self._lor(src if per_group else src.sum(axis=0, keepdims=True), g0, a)
+                self._lorentz[lkey] = parts
             got = gaussian_broaden(self.grid, parts, fwhm, keep_area=False)
             if len(self._cache) > 16:
                 self._cache.clear()

@@ -60,6 +60,7 @@ class QPCorrection:
     scale : s, dimensionless (< 1 narrows the d band about E_F)
     parameter_set : name of the set the constants were fitted on
     source : short text: what was fitted to what (the full record is in the data file)
+    spin_orbit : whether the model bands of the fit had spin–orbit coupling (None: unknown)
     """
 
     element: str
@@ -67,6 +68,7 @@ class QPCorrection:
     scale: float
     parameter_set: str = ""
     source: str = ""
+    spin_orbit: bool | None = None
 
     def __post_init__(self) -> None:
         for name, v, (lo, hi), unit in (("delta_ev", self.delta_ev, DELTA_RANGE, " eV"),
@@ -116,7 +118,7 @@ def corrections_for(parameter_set: str, data: Mapping | None = None) -> dict[str
     out = {}
     for el, c in entry.get("elements", {}).items():
         out[el] = QPCorrection(el, float(c["delta_eV"]), float(c["scale"]), str(parameter_set),
-                               c.get("fitted_to", ""))
+                               c.get("fitted_to", ""), c.get("spin_orbit"))
     return out
 
 
@@ -177,6 +179,8 @@ def apply_qp_correction(dos: DOSResult, corrections: Mapping[str, QPCorrection] 
         else:
             applied[el] = {"delta_eV": c.delta_ev, "scale": c.scale,
                            "parameter_set": c.parameter_set}
+            if c.spin_orbit is not None:
+                applied[el]["fitted_with_spin_orbit"] = c.spin_orbit
         delta -= float(d_offset)
         if delta == 0.0 and scale == 1.0:
             continue
@@ -207,6 +211,8 @@ def describe_record(record: dict | None) -> str:
              for el, v in record.get("applied", {}).items()]
     text = ("d bands corrected to photoemission: " + "; ".join(parts)) if parts else \
         "d bands not corrected"
+    if record.get("caution"):
+        text += f"; caution: {record['caution']}"
     if record.get("not_corrected"):
         text += (f" (no fitted correction for {', '.join(record['not_corrected'])} with "
                  f"{record.get('parameter_set', 'this parameter set')}: first-principles scale)")

@@ -419,6 +419,13 @@ def resolve_d_correction(dos: DOSResult, d_correction="auto",
                             "mapping element → QPCorrection")
     new, rec = apply_qp_correction(dos, corr, d_offset=d_offset)
     rec = {"enabled": enabled, "parameter_set": set_name, "origin": origin} | rec
+    has_soc = bool((dos.settings.get("spin") or {}).get("spin_orbit", False))
+    odd = [el for el, c in corr.items() if el in rec["applied"] and c.spin_orbit is not None
+           and c.spin_orbit != has_soc]
+    if odd:
+        rec["caution"] = (f"{', '.join(odd)} fitted with spin–orbit "
+                          f"{'on' if not has_soc else 'off'}, this DOS has it "
+                          f"{'off' if not has_soc else 'on'}")
     if not enabled:
         rec["not_corrected"] = []
         rec["note"] = "first-principles d bands (correction switched off)"
