@@ -426,6 +426,9 @@ def resolve_d_correction(dos: DOSResult, d_correction="auto",
         rec["caution"] = (f"{', '.join(odd)} fitted with spin–orbit "
                           f"{'on' if not has_soc else 'off'}, this DOS has it "
                           f"{'off' if not has_soc else 'on'}")
+    if rec["applied"] and len({c.element for c in dos.channel_labels}) > 1:
+        rec["transfer_note"] = ("constants fitted on the pure fcc metals, transferred unchanged "
+                                "to this compound or alloy")
     if not enabled:
         rec["not_corrected"] = []
         rec["note"] = "first-principles d bands (correction switched off)"
