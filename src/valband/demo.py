@@ -53,7 +53,7 @@ def demo_candidates() -> tuple[str, list[dict]]:
 def run_demo(out_dir: str | Path, params: str = DEFAULT_PARAMETER_SET, mesh: str = "20",
              fmt: str = "png", progress: bool = False, log=print) -> dict:
     """Run every candidate; return (and write) the demo summary with its screening table."""
-    from valband.demo_measurements import shipped_file
+    from valband.demo_measurements import INVENTED_D_CORRECTION, shipped_file
     from valband.jobs import bands_job, dos_job
     from valband.params import load_parameter_set
     from valband.spectra.compare import compare_job
@@ -85,7 +85,7 @@ def run_demo(out_dir: str | Path, params: str = DEFAULT_PARAMETER_SET, mesh: str
                                               context="spectra", progress=progress)
         simulate_job(model, settings, sub / "spectrum", "Al-Ka", 300.0, 0.3, (0.02, 0.02),
                      (54.735610317245346, "unpolarized"), fmt, dos=spec_dos,
-                     extra={"method": spec_record})
+                     extra={"method": spec_record}, d_correction=INVENTED_D_CORRECTION)
         row = {
             "name": c["name"], "formula": model.structure.formula, "note": c["note"],
             "d_band_centre_eV": table.cell.centre, "d_band_width_eV": table.cell.width,
@@ -97,7 +97,8 @@ def run_demo(out_dir: str | Path, params: str = DEFAULT_PARAMETER_SET, mesh: str
         if c["name"] in measured:
             _, fit, _, _ = compare_job(model, settings, measured[c["name"]], sub / "compare",
                                        photon_energy="Al-Ka", fmt=fmt, dos=spec_dos,
-                                       free=DEMO_FIT_FREE, extra={"method": spec_record})
+                                       free=DEMO_FIT_FREE, extra={"method": spec_record},
+                                       d_correction=INVENTED_D_CORRECTION)
             row |= {"measured_band_centre_eV": fit.band_centre.get("measured_eV"),
                     "fit_shift_eV": fit.value("shift"), "fit_shift_err_eV": fit.error("shift"),
                     "fit_reduced_chi2": fit.reduced_chi2, "fit_r_factor": fit.r_factor}

@@ -129,7 +129,9 @@ def _spectra(dos, photons, fwhm, temperature) -> list[dict]:
 
     out = []
     for hv in photons:
-        sp = simulate_spectrum(dos, hv, temperature=temperature, gaussian_fwhm=fwhm)
+        # screening stays on the first-principles scale: no photoemission d-band correction
+        sp = simulate_spectrum(dos, hv, temperature=temperature, gaussian_fwhm=fwhm,
+                               d_correction=None)
         be, y = sp.binding_energy, sp.intensity
         occ = be >= -3.0 * max(fwhm, 0.05)
         area = float(np.trapezoid(y[occ], be[occ]))

@@ -10,6 +10,7 @@ from valband.cli.cmd_simulate import (
     DEFAULT_GAMMA0_EV,
     DEFAULT_GAUSSIAN_FWHM_EV,
     MAGIC_ANGLE_DEG,
+    add_qp_argument,
 )
 from valband.cli.common import (
     add_depth_arguments,
@@ -25,9 +26,9 @@ __all__ = ["add_arguments", "run"]
 # Repeated from valband.spectra.fit so that ``valband --help`` does not import numba; a test
 # checks they agree.
 BACKGROUNDS = ("none", "constant", "linear", "shirley", "tougaard")
-FREE_NAMES = ("shift", "scale", "gaussian_fwhm", "gamma0", "lifetime_a", "background",
-              "weights")
-DEFAULT_FREE = ("shift", "scale", "gaussian_fwhm", "gamma0", "background")
+FREE_NAMES = ("shift", "d_offset", "scale", "gaussian_fwhm", "gamma0", "lifetime_a",
+              "background", "weights")
+DEFAULT_FREE = ("shift", "scale", "gaussian_fwhm", "gamma0", "lifetime_a", "background")
 
 
 def _names(text: str) -> tuple[str, ...]:
@@ -57,7 +58,8 @@ def add_arguments(p) -> None:
                    help="analyser work function for a kinetic axis, eV (default 4.5)")
     m.add_argument("--calibrate-edge", action="store_true",
                    help="fit the Fermi edge of the measurement first and move it to BE = 0 "
-                   "(the shift is then fixed unless --free names it)")
+                   "(the shift is then fixed unless --free names it, and the d-band offset "
+                   "d_offset is fitted instead)")
     m.add_argument("--edge-window", type=float, nargs=2, default=(-1.0, 1.0),
                    metavar=("BE_LO", "BE_HI"), help="Fermi-edge fit window, eV (default -1 1)")
     g = p.add_argument_group("photoemission")
@@ -77,14 +79,15 @@ def add_arguments(p) -> None:
                    help=f"source–analyser angle in degrees (default {MAGIC_ANGLE_DEG:.2f})")
     g.add_argument("--polarization", default="unpolarized", choices=["unpolarized", "linear"],
                    help="light polarisation (default unpolarized)")
+    add_qp_argument(g)
     add_depth_arguments(g)
     f = p.add_argument_group("fit")
     f.add_argument("--background", default="shirley", choices=BACKGROUNDS,
                    help="background fitted with the model (default shirley)")
     f.add_argument("--free", type=_names, default=None, metavar="NAMES",
                    help="comma-separated free parameters among " + ", ".join(FREE_NAMES)
-                   + f" (default {','.join(DEFAULT_FREE)}; without shift after "
-                   "--calibrate-edge)")
+                   + f" (default {','.join(DEFAULT_FREE)}; after --calibrate-edge d_offset "
+                   "instead of shift)")
     f.add_argument("--fix", type=_names, default=(), metavar="NAMES",
                    help="comma-separated parameters to hold at their start values")
     f.add_argument("--shift-range", type=float, nargs=2, default=(-2.0, 2.0),
@@ -121,7 +124,7 @@ def run(args) -> int:
     free = args.free
     if args.fix:
         base = free if free is not None else tuple(
-            n for n in DEFAULT_FREE if not (args.calibrate_edge and n == "shift"))
+            ("d_offset" if (args.calibrate_edge and n == "shift") else n) for n in DEFAULT_FREE)
         free = tuple(n for n in base if n not in args.fix)
     initial = {"gaussian_fwhm": args.resolution, "gamma0": args.lifetime[0],
                "lifetime_a": args.lifetime[1]}
@@ -133,7 +136,8 @@ def run(args) -> int:
         band_window=args.band_window,
         calibrate_window=tuple(args.edge_window) if args.calibrate_edge else None,
         fmt=args.format, progress=not (args.quiet or args.json), layer_weights=weights,
-        depth_record=record, dos=pre, extra={"method": method})
+        depth_record=record, dos=pre, extra={"method": method},
+        d_correction=None if args.no_qp_correction else "auto")
     if args.json:
         print_json(summary)
     elif not args.quiet:
@@ -142,9 +146,16 @@ def run(args) -> int:
                   f" eV on the file's axis (edge FWHM {cal['edge_fwhm_eV']:.3f} eV); shifted to 0")
         print(f"{model.structure.formula} vs {args.measured}: {fit.n_points} points, "
               f"background {args.background}")
+        from valband.spectra.quasiparticle import describe_record
+
+        print("  " + describe_record(fit.settings["d_band_correction"]))
         for name, par in fit.parameters.items():
             err = f" ± {par.error:.3g}" if par.error is not None else " (fixed)"
             print(f"  {name:14s} {par.value:12.5g}{err}  {par.unit}")
+        dp = fit.parameters.get("d_offset")
+        if dp is not None and dp.free:
+            print(f"  d-band offset (d against s, p and the {'calibrated' if cal else 'fitted'} "
+                  f"edge; + = deeper): {dp.value:+.3f} ± {dp.error:.3f} eV")
         print(f"  χ² {fit.chi2:.5g}, reduced χ² {fit.reduced_chi2:.4g} (dof {fit.dof}), "
               f"R-factor {fit.r_factor:.4g}")
         bc = fit.band_centre

@@ -19,12 +19,20 @@ __all__ = ["add_arguments", "run"]
 # Defaults repeated here so that ``valband --help`` does not import numba; a test checks they
 # equal valband.spectra's (DEFAULT_GAMMA0_EV, DEFAULT_A_PER_EV, DEFAULT_GAUSSIAN_FWHM_EV,
 # MAGIC_ANGLE_DEG).
-DEFAULT_GAMMA0_EV = 0.02
-DEFAULT_A_PER_EV = 0.02
+DEFAULT_GAMMA0_EV = 0.01
+DEFAULT_A_PER_EV = 0.01
 DEFAULT_GAUSSIAN_FWHM_EV = 0.3
 MAGIC_ANGLE_DEG = 54.735610317245346
 
 _SOURCES_HELP = "He-I 21.22, He-II 40.81, Mg-Ka 1253.6, Al-Ka 1486.6, Cr-Ka 5414.7, Ga-Ka 9251.7"
+
+
+def add_qp_argument(g) -> None:
+    """``--no-qp-correction`` (shared by simulate and compare)."""
+    g.add_argument("--no-qp-correction", action="store_true",
+                   help="do not apply the photoemission-calibrated d-band correction "
+                   "(default: on for elements with constants fitted on the parameter set; "
+                   "d levels E' = delta + s*E on the d-projected weight, E_F fixed)")
 
 
 def add_arguments(p) -> None:
@@ -50,6 +58,7 @@ def add_arguments(p) -> None:
     g.add_argument("--inelastic", nargs=2, metavar=("KIND", "VALUE"), default=None,
                    help="add an inelastic background: 'shirley K' (K in 1/eV, times the area "
                    "at lower BE) or 'tougaard B' (B in eV², universal cross-section)")
+    add_qp_argument(g)
     add_depth_arguments(g)
     add_dos_arguments(p)
     add_method_arguments(p)
@@ -82,7 +91,8 @@ def run(args) -> int:
         args.resolution, tuple(args.lifetime), (args.angle, args.polarization), args.format,
         progress=not (args.quiet or args.json), inelastic=_inelastic(args.inelastic),
         layer_weights=weights, depth_record=record, dos=pre,
-        extra={"method": method})
+        extra={"method": method},
+        d_correction=None if args.no_qp_correction else "auto")
     if args.json:
         print_json(summary)
     elif not args.quiet:
@@ -90,6 +100,12 @@ def run(args) -> int:
         print(f"{model.structure.formula}: spectrum at hν = {st['photon_energy_eV']:g} eV"
               f"{' (' + st['photon_source'] + ')' if st['photon_source'] else ''}, "
               f"T = {st['temperature_K']:g} K, resolution {st['gaussian_fwhm_eV']:g} eV FWHM")
+        lt = st["lifetime"]
+        print(f"  lifetime HWHM {lt['gamma0_eV']:g} eV + {lt['a_per_eV']:g}/eV·(E−E_F)²"
+              + (" (d-hole law from measured Cu widths)" if lt.get("source") != "given" else ""))
+        from valband.spectra.quasiparticle import describe_record
+
+        print("  " + describe_record(st["d_band_correction"]))
         for x in st["cross_sections"]:
             print(f"  {x['element']} {x['shell']} ({x['subshell']}): σ = "
                   f"{x['sigma_per_electron_mb']:.4g} Mb/electron, angular factor "

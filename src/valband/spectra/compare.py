@@ -23,10 +23,19 @@ from valband.output import SCHEMA_VERSION, prepare_out_dir, write_csv
 from valband.spectra.fit import DEFAULT_FREE, SpectrumFit, fit_spectrum
 from valband.spectra.measured import MeasuredSpectrum
 
-__all__ = ["write_fit_csv", "calibrate_measured", "compare_job", "DEFAULT_EDGE_WINDOW"]
+__all__ = ["write_fit_csv", "calibrate_measured", "compare_job", "default_free",
+           "DEFAULT_EDGE_WINDOW"]
 
 #: Binding-energy window (eV) of the Fermi-edge fit when none is given.
 DEFAULT_EDGE_WINDOW = (-1.0, 1.0)
+
+
+def default_free(calibrated: bool) -> tuple[str, ...]:
+    """Default free parameters of ``compare``: with a calibrated edge ``d_offset`` replaces
+    ``shift`` (a free shift would move the model's edge off the measured one)."""
+    if not calibrated:
+        return DEFAULT_FREE
+    return tuple("d_offset" if n == "shift" else n for n in DEFAULT_FREE)
 
 
 def write_fit_csv(path: str | Path, fit: SpectrumFit) -> Path:
@@ -78,11 +87,16 @@ def compare_job(model, dos_settings, measured: MeasuredSpectrum, out_dir, *,
                 background: str = "shirley", free=None, initial=None, shift_range=None,
                 window=None, band_window=None, calibrate_window=None, fmt: str = "png",
                 progress: bool = False, dos=None, layer_weights=None,
-                depth_record: dict | None = None, extra: dict | None = None):
+                depth_record: dict | None = None, extra: dict | None = None,
+                d_correction="auto"):
     """DOS → fit against ``measured``; writes the files of the module docstring.
 
     ``calibrate_window`` (BE_low, BE_high) runs the Fermi-edge calibration first; then the
-    default free parameters leave out ``shift`` (the Fermi level is known). A ``dos`` already
+    default free parameters leave out ``shift`` (the Fermi level is known) and fit the d-band
+    offset ``d_offset`` instead (the d components against the fixed edge and the s, p
+    components; without a calibrated edge it would trade off against the free shift, so it is
+    not free by default then). ``d_correction`` as in
+    :func:`~valband.spectra.simulate_spectrum` (default "auto": on). A ``dos`` already
     computed with ``dos_settings`` may be passed to skip the computation. Returns
     ``(summary, fit, dos, calibration_record_or_None)``; ``out_dir=None`` writes nothing.
     """
@@ -94,14 +108,14 @@ def compare_job(model, dos_settings, measured: MeasuredSpectrum, out_dir, *,
     if calibrate_window is not None:
         measured, calibration = calibrate_measured(measured, calibrate_window, temperature)
     if free is None:
-        free = tuple(n for n in DEFAULT_FREE if not (calibration and n == "shift"))
+        free = default_free(calibration is not None)
     if dos is None:
         dos = compute_dos(model, dos_settings, progress=progress)
     kwargs = {} if shift_range is None else {"shift_range": shift_range}
     fit = fit_spectrum(measured, dos, photon_energy, temperature=temperature,
                        geometry=geometry or DEFAULT_GEOMETRY, background=background, free=free,
                        initial=initial, window=window, band_window=band_window,
-                       layer_weights=layer_weights, **kwargs)
+                       layer_weights=layer_weights, d_correction=d_correction, **kwargs)
     files = {}
     if out_dir is not None:
         out = prepare_out_dir(out_dir)
@@ -123,7 +137,9 @@ def compare_job(model, dos_settings, measured: MeasuredSpectrum, out_dir, *,
                                  if k in ("axis", "axis_from", "work_function_eV", "conversion")}}
     summary = summary_of("compare", dos, extra={"fit": fit.summary(), "measured": measured_block,
                                                 "calibration": calibration,
-                                                "depth_weighting": depth_record}
+                                                "depth_weighting": depth_record,
+                                                "d_band_correction":
+                                                    fit.settings["d_band_correction"]}
                          | (extra or {}),
                          files=files or None)
     if out_dir is not None:

@@ -29,11 +29,20 @@ k_T (eV²) are the background parameters. Building the background from the *mode
 from the data (as :mod:`valband.spectra.background` does) lets it be fitted together with
 everything else.
 
-Free parameters: any of ``shift``, ``scale``, ``gaussian_fwhm`` (eV), ``gamma0`` (eV),
-``lifetime_a`` (1/eV), ``background`` (all amplitudes of the chosen background) and
-``weights``; the rest stay at their initial values. Weighted least squares
-(:func:`scipy.optimize.least_squares`, trust-region reflective with bounds) on
-r_i = (y_i − model_i)/σ_i with σ the measured uncertainty (Poisson √counts, at least 1) when the
+Free parameters: any of ``shift``, ``d_offset`` (eV), ``scale``, ``gaussian_fwhm`` (eV),
+``gamma0`` (eV), ``lifetime_a`` (1/eV), ``background`` (all amplitudes of the chosen
+background) and ``weights``; the rest stay at their initial values (default free:
+:data:`DEFAULT_FREE`, i.e. the lifetime law is fitted, within bounds that keep it physical).
+
+d-band offset δ_d (``d_offset``): the d groups' pDOS is moved by δ_d to higher binding energy
+*before* the Fermi–Dirac occupation and the broadening, i.e. relative to the s, p groups and to
+the Fermi edge, which stays fixed — the quantity of interest once the edge was calibrated (then
+``compare`` fits δ_d instead of the global shift). It acts on top of the photoemission d-band
+correction (:mod:`valband.spectra.quasiparticle`, on by default, ``d_correction``). It starts
+from a coarse scan (0.1 eV steps) with the linear parameters solved at each step.
+
+Weighted least squares (:func:`scipy.optimize.least_squares`, trust-region reflective with
+bounds) on r_i = (y_i − model_i)/σ_i with σ the measured uncertainty (Poisson √counts, at least 1) when the
 spectrum has one, else σ = 1 and the covariance scaled by the reduced χ². The shift starts from
 the best point of a coarse scan over its bounds (linear parameters solved at each step), so a
 calibration offset of an electronvolt or so is found without an initial guess.
@@ -85,6 +94,7 @@ from valband.spectra.simulate import (
     _photon,
     _site_weights,
     channel_weights,
+    resolve_d_correction,
 )
 
 __all__ = ["SpectrumFit", "FitParameter", "fit_spectrum", "spectrum_band_centre",
@@ -93,14 +103,20 @@ __all__ = ["SpectrumFit", "FitParameter", "fit_spectrum", "spectrum_band_centre"
 FIT_KIND = "valband.spectrum_fit"
 BACKGROUNDS = ("none", "constant", "linear", "shirley", "tougaard")
 #: Parameters fitted unless the caller says otherwise.
-DEFAULT_FREE = ("shift", "scale", "gaussian_fwhm", "gamma0", "background")
-_FREE_NAMES = ("shift", "scale", "gaussian_fwhm", "gamma0", "lifetime_a", "background",
-               "weights")
+DEFAULT_FREE = ("shift", "scale", "gaussian_fwhm", "gamma0", "lifetime_a", "background")
+_FREE_NAMES = ("shift", "d_offset", "scale", "gaussian_fwhm", "gamma0", "lifetime_a",
+               "background", "weights")
 #: Default bounds of the nonlinear parameters.
 DEFAULT_SHIFT_RANGE_EV = 2.0
+#: Bounds of the d-band offset, eV: beyond the largest correction fitted (Ag, −1.3 eV).
+DEFAULT_D_OFFSET_RANGE_EV = 1.5
 #: FWHM up to 1.5 eV: above any valence-band XPS/UPS/HAXPES resolution in use (common practice).
-_WIDTH_BOUNDS = {"gaussian_fwhm": (1e-3, 1.5), "gamma0": (0.0, 2.0), "lifetime_a": (0.0, 1.0)}
-_UNITS = {"shift": "eV", "gaussian_fwhm": "eV", "gamma0": "eV", "lifetime_a": "1/eV",
+#: Lifetime: Γ₀ ≤ 0.5 eV HWHM at E_F and a ≤ 0.1 eV⁻¹ (HWHM 0.9 eV at 3 eV, 2.5 eV at 5 eV:
+#: about five times the widest d-hole widths of the noble metals and Ni, see
+#: :mod:`valband.spectra.broadening`), so a free lifetime cannot swallow the band shape.
+_WIDTH_BOUNDS = {"gaussian_fwhm": (1e-3, 1.5), "gamma0": (0.0, 0.5), "lifetime_a": (0.0, 0.1)}
+_UNITS = {"shift": "eV", "d_offset": "eV", "gaussian_fwhm": "eV", "gamma0": "eV",
+          "lifetime_a": "1/eV",
           "bg_constant": "intensity", "bg_slope": "intensity/eV", "bg_shirley": "1/eV",
           "bg_tougaard": "eV^2", "scale": "intensity per (Mb states/eV/cell)"}
 _MIN_POINTS = 10
@@ -229,38 +245,67 @@ class _Model:
 
     ``raw`` (n_groups, n_full) holds the unbroadened group curves on ``full_grid``; the
     Lorentzian is evaluated only at the output points ``out_range`` (every source point
-    contributes), the Gaussian and the background shapes on that output grid.
+    contributes), the Gaussian and the background shapes on that output grid. The groups in
+    ``d_rows`` can be moved by a d-band offset δ: their weighted pDOS before occupation
+    (``d_pre``, on the DOS grid E − E_F ascending) is shifted by −δ in E (weight conserved),
+    multiplied by the fixed Fermi–Dirac ``occ`` and put on the BE grid again, so the Fermi edge
+    stays where it is.
     """
 
     def __init__(self, full_grid: NDArray, raw: NDArray, out_range: tuple[int, int],
-                 background: str):
+                 background: str, d_rows=(), d_pre=None, occ=None, embed=None):
         self.full_grid, self.raw, self.out_range, self.kind = full_grid, raw, out_range, background
         self.grid = full_grid[out_range[0]:out_range[1]]
         self.h = float(full_grid[1] - full_grid[0])
+        self.d_rows = tuple(d_rows)
+        self.d_pre, self.occ, self.embed = d_pre, occ, embed
         self._lorentz: dict = {}
         self._cache: dict = {}
 
-    def broadened(self, fwhm: float, g0: float, a: float, per_group: bool = True) -> NDArray:
+    def _lor(self, src: NDArray, g0: float, a: float) -> NDArray:
+        g = lifetime_width(self.full_grid, g0, a)
+        if not np.any(g > 0):
+            return src[:, self.out_range[0]:self.out_range[1]].copy()
+        return lorentzian_numba(self.full_grid, src, g, keep_area=False,
+                                out_range=self.out_range)
+
+    def _raw_d(self, d_off: float) -> NDArray:
+        """Unbroadened d groups on the full BE grid at d-band offset ``d_off`` (eV)."""
+        from valband.spectra.quasiparticle import map_density
+
+        if d_off == 0.0:
+            return self.raw[list(self.d_rows)]
+        e = self.embed["energies"]
+        moved = map_density(e, self.d_pre, -d_off, 1.0) * self.occ[None, :]
+        out = np.zeros((len(self.d_rows), self.full_grid.size))
+        k = self.embed["offset"]
+        out[:, k:k + e.size] = moved[:, ::-1]
+        return out
+
+    def broadened(self, fwhm: float, g0: float, a: float, per_group: bool = True,
+                  d_off: float = 0.0) -> NDArray:
         """Broadened curves on the output grid: (n_groups, n) or, summed, (1, n); cached.
 
-        The Lorentzian is cached on (Γ₀, a) alone, so changing the Gaussian width or the
-        shift reuses it. keep_area=False: weight spread beyond the grid is not observed.
+        The Lorentzian is cached on (Γ₀, a, δ), so changing the Gaussian width or the shift
+        reuses it.
+        keep_area=False: weight spread beyond the grid is not observed.
         """
-        key = (fwhm, g0, a, per_group)
+        key = (fwhm, g0, a, per_group, d_off)
         got = self._cache.get(key)
         if got is None:
-            lkey = (g0, a, per_group)
-            lor = self._lorentz.get(lkey)
-            if lor is None:
-                src = self.raw if per_group else self.raw.sum(axis=0, keepdims=True)
-                g = lifetime_width(self.full_grid, g0, a)
-                lor = (lorentzian_numba(self.full_grid, src, g, keep_area=False,
-                                        out_range=self.out_range) if np.any(g > 0)
-                       else src[:, self.out_range[0]:self.out_range[1]].copy())
-                if len(self._lorentz) > 8:
-                    self._lorentz.clear()
-                self._lorentz[lkey] = lor
-            got = gaussian_broaden(self.grid, lor, fwhm, keep_area=False)
+            if len(self._lorentz) > 24:
+                self._lorentz.clear()
+            lkey = (g0, a, d_off, per_group)
+            parts = self._lorentz.get(lkey)
+            if parts is None:
+                src = self.raw
+                if self.d_rows and d_off != 0.0:
+                    src = src.copy()
+                    src[list(self.d_rows)] = self._raw_d(d_off)
+                # summed over the groups before the O(n²) Lorentzian unless asked per group
+                parts = self._lor(src if per_group else src.sum(axis=0, keepdims=True), g0, a)
+                self._lorentz[lkey] = parts
+            got = gaussian_broaden(self.grid, parts, fwhm, keep_area=False)
             if len(self._cache) > 16:
                 self._cache.clear()
             self._cache[key] = got
@@ -326,7 +371,7 @@ def fit_spectrum(measured: MeasuredSpectrum, dos: DOSResult, photon_energy=None,
                                                      DEFAULT_SHIFT_RANGE_EV),
                  window: tuple[float, float] | None = None,
                  band_window: tuple[float, float] | None = None,
-                 band_shell: str = "d") -> SpectrumFit:
+                 band_shell: str = "d", d_correction="auto") -> SpectrumFit:
     """Fit the spectrum simulated from ``dos`` to ``measured`` (model in the module docstring).
 
     Parameters
@@ -340,7 +385,8 @@ def fit_spectrum(measured: MeasuredSpectrum, dos: DOSResult, photon_energy=None,
     free : parameter names among ``shift, scale, gaussian_fwhm, gamma0, lifetime_a,
         background, weights`` (default :data:`DEFAULT_FREE`)
     initial : starting (or fixed) values: ``shift`` (0), ``gaussian_fwhm``
-        (0.3 eV), ``gamma0`` (0.02 eV), ``lifetime_a`` (0.02 1/eV); linear parameters start
+        (0.3 eV), ``gamma0`` (0.01 eV), ``lifetime_a`` (0.01 1/eV), ``d_offset`` (0); linear
+        parameters start
         from a linear least-squares solve
     shift_range : bounds of the shift, eV (default ±2 eV)
     window : BE range of the fitted points, eV; default the measured range inside the DOS
@@ -348,6 +394,9 @@ def fit_spectrum(measured: MeasuredSpectrum, dos: DOSResult, photon_energy=None,
     band_window : BE window of the band-centre moments, eV; default (0, deep end of the fit
         window)
     band_shell : shell of the model descriptor (default d)
+    d_correction : "auto" (default: the photoemission d-band correction fitted on the DOS's
+        parameter set), None/False (off) or element → QPCorrection; as in
+        :func:`~valband.spectra.simulate_spectrum`
 
     Returns
     -------
@@ -377,8 +426,13 @@ def fit_spectrum(measured: MeasuredSpectrum, dos: DOSResult, photon_energy=None,
         raise SettingsError(f"temperature {t} K: must be ≥ 0")
     theta, pol = _geometry(geometry)
     chosen = _check_free(free, background)
+    dos, d_record = resolve_d_correction(dos, d_correction)
+    has_d = any(c.shell == "d" for c in dos.channel_labels)
+    if "d_offset" in chosen and not has_d:
+        chosen.discard("d_offset")
+        d_record["d_offset_note"] = "d_offset not fitted: the DOS has no d channel"
     init = dict(initial or {})
-    known = {"shift", "gaussian_fwhm", "gamma0", "lifetime_a", "scale"}
+    known = {"shift", "d_offset", "gaussian_fwhm", "gamma0", "lifetime_a", "scale"}
     if set(init) - known:
         raise SettingsError(f"initial values for {', '.join(sorted(set(init) - known))}: "
                             f"accepted keys {', '.join(sorted(known))}")
@@ -415,8 +469,9 @@ def fit_spectrum(measured: MeasuredSpectrum, dos: DOSResult, photon_energy=None,
     site_w = _site_weights(layer_weights, dos.sites)
     w_ch = w_ch * np.array([site_w[c.site] for c in dos.channel_labels])
     occ = fermi_dirac(dos.energies, t)
-    names, groups = _groups(dos, w_ch)
-    groups = groups * occ[None, :]
+    names, groups_pre = _groups(dos, w_ch)
+    groups = groups_pre * occ[None, :]
+    d_rows = tuple(i for i, n in enumerate(names) if n.endswith(":d"))
     h = float(dos.energies[1] - dos.energies[0])
     be_dos = -dos.energies[::-1]
     # output grid: the window, moved by any allowed shift, plus the widest Gaussian's reach
@@ -429,7 +484,9 @@ def fit_spectrum(measured: MeasuredSpectrum, dos: DOSResult, photon_energy=None,
     raw[:, -k_lo:-k_lo + be_dos.size] = groups[:, ::-1]
     j0 = max(0, int(np.searchsorted(full, e[0] - pad)) - 1)
     j1 = min(full.size, int(np.searchsorted(full, e[-1] + pad)) + 1)
-    model = _Model(full, raw, (j0, j1), background)
+    model = _Model(full, raw, (j0, j1), background, d_rows=d_rows,
+                   d_pre=groups_pre[list(d_rows)], occ=occ,
+                   embed={"energies": np.asarray(dos.energies), "offset": -k_lo})
     grid = model.grid
 
     # ---- parameter vector
@@ -438,23 +495,27 @@ def fit_spectrum(measured: MeasuredSpectrum, dos: DOSResult, photon_energy=None,
     ref = int(np.argmax(areas))
     w_names = tuple(f"w_{n}" for i, n in enumerate(names) if i != ref)
     nonlin = {"shift": float(init.get("shift", 0.0)),
+              "d_offset": float(init.get("d_offset", 0.0)),
               "gaussian_fwhm": float(init.get("gaussian_fwhm", DEFAULT_GAUSSIAN_FWHM_EV)),
               "gamma0": float(init.get("gamma0", DEFAULT_GAMMA0_EV)),
               "lifetime_a": float(init.get("lifetime_a", DEFAULT_A_PER_EV))}
     for k, v in nonlin.items():
         _number(v, f"initial {k}")
-    bounds = {"shift": (s_lo, s_hi), **_WIDTH_BOUNDS, "scale": (0.0, np.inf),
+    bounds = {"shift": (s_lo, s_hi),
+              "d_offset": (-DEFAULT_D_OFFSET_RANGE_EV, DEFAULT_D_OFFSET_RANGE_EV),
+              **_WIDTH_BOUNDS, "scale": (0.0, np.inf),
               "bg_constant": (-np.inf, np.inf), "bg_slope": (-np.inf, np.inf),
               "bg_shirley": (0.0, np.inf), "bg_tougaard": (0.0, np.inf)}
     bounds |= {n: (0.0, np.inf) for n in w_names}
-    for k in ("shift", "gaussian_fwhm", "gamma0", "lifetime_a"):
+    for k in ("shift", "d_offset", "gaussian_fwhm", "gamma0", "lifetime_a"):
         lo_b, hi_b = bounds[k]
         if not lo_b <= nonlin[k] <= hi_b and k in chosen | ({"shift"} if k == "shift" else set()):
             raise SettingsError(f"initial {k} = {nonlin[k]:g} lies outside its bounds "
                                 f"({lo_b:g}, {hi_b:g})")
-    all_names = ("shift", "gaussian_fwhm", "gamma0", "lifetime_a", "scale", *bg_names, *w_names)
-    is_free = {n: (n in chosen) for n in ("shift", "gaussian_fwhm", "gamma0", "lifetime_a",
-                                           "scale")}
+    all_names = ("shift", "d_offset", "gaussian_fwhm", "gamma0", "lifetime_a", "scale",
+                 *bg_names, *w_names)
+    is_free = {n: (n in chosen) for n in ("shift", "d_offset", "gaussian_fwhm", "gamma0",
+                                           "lifetime_a", "scale")}
     is_free |= {n: "background" in chosen for n in bg_names}
     is_free |= {n: "weights" in chosen for n in w_names}
 
@@ -469,7 +530,8 @@ def fit_spectrum(measured: MeasuredSpectrum, dos: DOSResult, photon_energy=None,
         ``per_group`` is false.
         """
         per_group = per_group or weights_free
-        curves = model.broadened(p["gaussian_fwhm"], p["gamma0"], p["lifetime_a"], per_group)
+        curves = model.broadened(p["gaussian_fwhm"], p["gamma0"], p["lifetime_a"], per_group,
+                                 p["d_offset"])
         wts = np.ones(len(names) if per_group else 1)
         if per_group:
             for i, n in enumerate(names):
@@ -492,7 +554,7 @@ def fit_spectrum(measured: MeasuredSpectrum, dos: DOSResult, photon_energy=None,
     def linear_solve(p: dict) -> dict:
         """Best linear parameters (scale, background amplitudes, weights) at p's widths/shift."""
         curves = model.broadened(p["gaussian_fwhm"], p["gamma0"], p["lifetime_a"],
-                                 weights_free)
+                                 weights_free, p["d_offset"])
         at = e - p["shift"]
         cols, cnames = [], []
         base = np.ones(len(names) if weights_free else 1)
@@ -554,6 +616,15 @@ def fit_spectrum(measured: MeasuredSpectrum, dos: DOSResult, photon_energy=None,
         p0 = best[1]
     else:
         p0 = linear_solve(p0)
+    if is_free["d_offset"]:   # coarse scan of the d-band offset at the best shift
+        d_lo, d_hi = bounds["d_offset"]
+        best = None
+        for dv in np.arange(d_lo, d_hi + 0.05, 0.1):
+            cand = linear_solve(p0 | {"d_offset": float(dv)})
+            c2 = chi2_of(cand)
+            if best is None or c2 < best[0]:
+                best = (c2, cand)
+        p0 = best[1]
     if "scale" in init and not is_free["scale"]:   # a fixed scale keeps the user's value
         p0["scale"] = float(init["scale"])
 
@@ -566,7 +637,8 @@ def fit_spectrum(measured: MeasuredSpectrum, dos: DOSResult, photon_energy=None,
     ub = np.array([bounds[n][1] for n in free_names])
     x0 = np.clip(x0, lb, ub)
     scale_of = {n: max(abs(p0[n]), 1e-3) for n in free_names}
-    scale_of |= {k: 0.01 for k in ("shift", "gaussian_fwhm", "gamma0") if k in scale_of}
+    scale_of |= {k: 0.01 for k in ("shift", "d_offset", "gaussian_fwhm", "gamma0")
+                 if k in scale_of}
     scale_of |= {"lifetime_a": 0.01} if "lifetime_a" in scale_of else {}
     if "bg_constant" in scale_of:
         scale_of["bg_constant"] = max(abs(p0["bg_constant"]), 1e-3 * float(np.abs(y).max()))
@@ -637,6 +709,10 @@ def fit_spectrum(measured: MeasuredSpectrum, dos: DOSResult, photon_energy=None,
         "layer_weights": {str(s): w for s, w in site_w.items()} if layer_weights is not None
         else None,
         "model": "scale * sum_g w_g M_g(BE - shift) + background",
+        "d_band_correction": d_record,
+        "d_offset_definition": "d components (pDOS before occupation) moved by d_offset to "
+                               "higher binding energy relative to the s, p components and to "
+                               "the fixed Fermi edge; applied after the d-band correction",
     }
     provenance = {"measured_source": measured.source, "measured_block": measured.block,
                   "measured_unit": measured.unit, "dos_provenance": dos.provenance,

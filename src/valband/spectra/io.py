@@ -57,13 +57,15 @@ def spectrum_summary(spectrum: Spectrum) -> dict:
 def simulate_job(model, dos_settings, out_dir, photon_energy, temperature, gaussian_fwhm,
                  lorentz, geometry, fmt: str = "png", progress: bool = False, inelastic=None,
                  dos=None, layer_weights=None, depth_record: dict | None = None,
-                 extra: dict | None = None):
+                 extra: dict | None = None, d_correction="auto"):
     """DOS → spectrum; writes ``spectrum.csv``, ``spectrum.<fmt>``, ``summary.json``.
 
     Returns ``(summary, spectrum, dos)``; with ``out_dir=None`` nothing is written. A ``dos``
     already computed with ``dos_settings`` may be passed to skip the computation;
     ``layer_weights`` (per site) and their ``depth_record`` come from
-    :func:`valband.spectra.depth.slab_depth_weights`.
+    :func:`valband.spectra.depth.slab_depth_weights`. ``d_correction`` as in
+    :func:`~valband.spectra.simulate_spectrum` ("auto": the photoemission d-band correction of
+    the parameter set; None: off); the DOS in ``summary.json`` stays the first-principles one.
     """
     from valband.spectra.simulate import simulate_spectrum
     from valband.workflows import compute_dos
@@ -73,7 +75,8 @@ def simulate_job(model, dos_settings, out_dir, photon_energy, temperature, gauss
         dos = compute_dos(model, dos_settings, progress=progress)
     spec = simulate_spectrum(dos, photon_energy, temperature=temperature,
                              gaussian_fwhm=gaussian_fwhm, lorentz=lorentz, geometry=geometry,
-                             inelastic=inelastic, layer_weights=layer_weights)
+                             inelastic=inelastic, layer_weights=layer_weights,
+                             d_correction=d_correction)
     files = {}
     if out_dir is not None:
         out = prepare_out_dir(out_dir)
@@ -86,7 +89,10 @@ def simulate_job(model, dos_settings, out_dir, photon_energy, temperature, gauss
                       f"{spec.settings['photon_energy_eV']:g} eV — {model.parameter_set}")
         files["spectrum_plot"] = save_figure(fig, out / f"spectrum.{fmt}")
     block = spectrum_summary(spec) | ({"depth_weighting": depth_record} if depth_record else {})
-    summary = summary_of("simulate", dos, extra={"spectrum": block} | (extra or {}),
+    summary = summary_of("simulate", dos, extra={"spectrum": block,
+                                                 "d_band_correction":
+                                                     spec.settings["d_band_correction"]}
+                         | (extra or {}),
                          files=files or None)
     if out_dir is not None:
         write_summary(Path(out_dir) / "summary.json", summary)

@@ -42,14 +42,15 @@ from valband.results.dos import DOSResult
 from valband.spectra.broadening import (
     DEFAULT_A_PER_EV,
     DEFAULT_GAMMA0_EV,
+    LIFETIME_SOURCE,
     check_uniform_grid,
     fermi_dirac,
     gaussian_broaden,
     lorentzian_broaden,
 )
 
-__all__ = ["Spectrum", "simulate_spectrum", "channel_weights", "DEFAULT_GAUSSIAN_FWHM_EV",
-           "DEFAULT_GEOMETRY", "MAGIC_ANGLE_DEG", "SPECTRUM_KIND"]
+__all__ = ["Spectrum", "simulate_spectrum", "channel_weights", "resolve_d_correction",
+           "DEFAULT_GAUSSIAN_FWHM_EV", "DEFAULT_GEOMETRY", "MAGIC_ANGLE_DEG", "SPECTRUM_KIND"]
 
 #: Instrument resolution default, FWHM in eV: a monochromated Al Kα lab spectrometer
 #: (common practice, order of magnitude).
@@ -276,7 +277,8 @@ def simulate_spectrum(dos: DOSResult, photon_energy, temperature: float = 300.0,
                       lorentz: tuple[float, float] = (DEFAULT_GAMMA0_EV, DEFAULT_A_PER_EV),
                       geometry: tuple[float, str] = DEFAULT_GEOMETRY,
                       layer_weights=None, keep_area: bool = True,
-                      inelastic: tuple[str, float] | None = None) -> Spectrum:
+                      inelastic: tuple[str, float] | None = None,
+                      d_correction="auto") -> Spectrum:
     """Simulate a valence-band photoemission spectrum (model in the module docstring).
 
     Parameters
@@ -288,7 +290,8 @@ def simulate_spectrum(dos: DOSResult, photon_energy, temperature: float = 300.0,
     temperature : K, ≥ 0 (0: step occupation)
     gaussian_fwhm : instrument resolution, FWHM in eV, ≥ 0
     lorentz : (Γ₀ in eV, a in eV⁻¹)
-        Lifetime HWHM Γ(E) = Γ₀ + a (E − E_F)²; defaults common practice, order of magnitude.
+        Lifetime HWHM Γ(E) = Γ₀ + a (E − E_F)²; default the d-hole law of
+        :mod:`valband.spectra.broadening` (0.01 eV, 0.01 eV⁻¹, from measured Cu d-hole widths).
     geometry : (θ in degrees, "unpolarized" | "linear")
         θ between photon beam and analyser (unpolarised) or between polarisation vector and
         analyser (linear). Default: magic angle, unpolarised.
@@ -303,6 +306,10 @@ def simulate_spectrum(dos: DOSResult, photon_energy, temperature: float = 300.0,
         convolved with the universal loss shape T/(C + T²)²
         (:func:`~valband.spectra.background.tougaard_shape`, Tougaard 1988; a typical B for
         metals is ~3000 eV², common practice).
+    d_correction : "auto" (default), None/False, or element → QPCorrection
+        The photoemission-calibrated d-band correction (:mod:`valband.spectra.quasiparticle`):
+        "auto" looks up the constants fitted on the DOS's parameter set (elements without
+        any stay uncorrected, and the record says so); None or False switches it off.
 
     Returns
     -------
@@ -310,6 +317,7 @@ def simulate_spectrum(dos: DOSResult, photon_energy, temperature: float = 300.0,
     """
     if not isinstance(dos, DOSResult):
         raise InputError(f"simulate_spectrum needs a DOSResult, got {type(dos).__name__}")
+    dos, d_record = resolve_d_correction(dos, d_correction)
     hv, source = _photon(photon_energy)
     try:
         t = float(temperature)
@@ -347,7 +355,9 @@ def simulate_spectrum(dos: DOSResult, photon_energy, temperature: float = 300.0,
         "temperature_K": t,
         "gaussian_fwhm_eV": fwhm,
         "lifetime": {"gamma0_eV": g0, "a_per_eV": a, "law": "HWHM = gamma0 + a*(E-E_F)^2",
-                     "width_kind": "HWHM"},
+                     "width_kind": "HWHM",
+                     "source": LIFETIME_SOURCE if (g0, a) == (DEFAULT_GAMMA0_EV,
+                                                              DEFAULT_A_PER_EV) else "given"},
         "geometry": {"theta_deg": theta, "polarization": pol},
         "cross_sections": used,
         "cross_section_unit": "Mb per electron",
@@ -355,6 +365,7 @@ def simulate_spectrum(dos: DOSResult, photon_energy, temperature: float = 300.0,
         else None,
         "keep_area": bool(keep_area),
         "inelastic_background": inel,
+        "d_band_correction": d_record,
         "intensity_unit": "Mb states/eV per cell",
         "binding_energy_order": "ascending",
     }
@@ -367,6 +378,61 @@ def simulate_spectrum(dos: DOSResult, photon_energy, temperature: float = 300.0,
 
 
 _INELASTIC = {"shirley": ("k", "1/eV"), "tougaard": ("B", "eV^2")}
+
+
+def resolve_d_correction(dos: DOSResult, d_correction="auto",
+                         d_offset: float = 0.0) -> tuple[DOSResult, dict]:
+    """Apply the d-band correction chosen by ``d_correction`` (see :func:`simulate_spectrum`).
+
+    Returns the (possibly new) DOS and the record stored in the settings:
+    ``{"enabled", "parameter_set", "applied": {El: {delta_eV, scale}}, "not_corrected", …}``.
+    """
+    from valband.spectra.quasiparticle import (
+        QPCorrection,
+        apply_qp_correction,
+        corrections_for,
+    )
+
+    set_name = (dos.provenance.get("parameter_set") or {}).get("name")
+    if d_correction is None or d_correction is False:
+        corr, enabled, origin = {}, False, "switched off"
+    elif isinstance(d_correction, str):
+        if d_correction != "auto":
+            raise SettingsError(f"d_correction {d_correction!r}: accepted 'auto', None/False or "
+                                "a mapping element → QPCorrection")
+        corr, enabled = corrections_for(set_name) if set_name else {}, True
+        origin = f"fitted on {set_name} (valband/data/spectra/qp_corrections.json)"
+    elif isinstance(d_correction, Mapping):
+        corr, enabled, origin = {}, True, "given"
+        for el, c in d_correction.items():
+            if isinstance(c, QPCorrection):
+                corr[el] = c
+            else:
+                try:
+                    delta, scale = (float(v) for v in c)
+                except (TypeError, ValueError):
+                    raise SettingsError(f"d_correction[{el!r}] = {c!r}: expected a "
+                                        "QPCorrection or (delta_eV, scale)") from None
+                corr[el] = QPCorrection(el, delta, scale, "given")
+    else:
+        raise SettingsError(f"d_correction {d_correction!r}: accepted 'auto', None/False or a "
+                            "mapping element → QPCorrection")
+    new, rec = apply_qp_correction(dos, corr, d_offset=d_offset)
+    rec = {"enabled": enabled, "parameter_set": set_name, "origin": origin} | rec
+    has_soc = bool((dos.settings.get("spin") or {}).get("spin_orbit", False))
+    odd = [el for el, c in corr.items() if el in rec["applied"] and c.spin_orbit is not None
+           and c.spin_orbit != has_soc]
+    if odd:
+        rec["caution"] = (f"{', '.join(odd)} fitted with spin–orbit "
+                          f"{'on' if not has_soc else 'off'}, this DOS has it "
+                          f"{'off' if not has_soc else 'on'}")
+    if rec["applied"] and len({c.element for c in dos.channel_labels}) > 1:
+        rec["transfer_note"] = ("constants fitted on the pure fcc metals, transferred unchanged "
+                                "to this compound or alloy")
+    if not enabled:
+        rec["not_corrected"] = []
+        rec["note"] = "first-principles d bands (correction switched off)"
+    return new, rec
 
 
 def _inelastic(inelastic, h: float, peak: NDArray) -> tuple[NDArray | None, dict | None]:
