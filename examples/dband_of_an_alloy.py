@@ -35,7 +35,7 @@ def main() -> None:
     # the program's default method: local charge neutrality per site for a compound
     dos, record = dos_by_method(model, {"kind": "file"},
                                 DOSSettings(mesh=args.mesh, method="tetrahedron"), params=params)
-    table = describe(dos, "d", window=(-10.0, 4.0))
+    table = describe(dos, "d")   # the default window: E_F - 15 ... E_F + 5 eV, clipped to the grid
 
     print(f"{structure.formula}: {model.n_orbitals} orbitals, E_F = {dos.fermi_level:.3f} eV "
           f"(model scale), {dos.settings['mesh']['n_irreducible']} irreducible k-points, "
