@@ -176,6 +176,9 @@ def _generate(args) -> int:
     print(f"wrote {out}: {len(info['elements'])} elements, {info['n_pairs']} pairs "
           f"({info['atoms_s']:.1f} s atoms, {info['pairs_s']:.1f} s pair tables, "
           f"{len(text) / 1e6:.2f} MB)")
+    rule = ", ".join(f"{sh} {f:g}" for sh, f in settings.r0_factors.items())
+    print(f"confinement rule r0 = factor x r_cov: {rule}, density {settings.density_factor:g} "
+          "(elements without --r0/--r0-density); recorded in the provenance")
     return 0
 
 

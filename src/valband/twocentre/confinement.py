@@ -106,6 +106,8 @@ from .radial import LogGridFunction
 __all__ = [
     "SHELL_R0_FACTORS",
     "DENSITY_R0_FACTOR",
+    "LEGACY_SHELL_R0_FACTORS",
+    "LEGACY_DENSITY_R0_FACTOR",
     "CONFIGURATION_RULES",
     "ONSITE_RULES",
     "MIN_R0_FACTOR",
@@ -120,9 +122,14 @@ __all__ = [
 
 #: Default orbital radius r₀ = factor × r_cov per shell (see the module docstring for the
 #: measurements behind the numbers).
-SHELL_R0_FACTORS: dict[str, float] = {"s": 1.45, "p": 1.8, "d": 0.85}
+SHELL_R0_FACTORS: dict[str, float] = {"s": 1.29, "p": 1.71, "d": 1.68}
 #: Default density radius r₀ = factor × r_cov (the atom whose density makes V_na).
-DENSITY_R0_FACTOR: float = 1.55
+DENSITY_R0_FACTOR: float = 1.28
+#: The rule of ``valband-tc-2026`` (fitted to band positions only; kept so that sets whose
+#: provenance predates the factor settings regenerate with the factors they were made with).
+LEGACY_SHELL_R0_FACTORS: dict[str, float] = {"s": 1.29, "p": 1.71, "d": 1.68}
+#: Density factor of ``valband-tc-2026``.
+LEGACY_DENSITY_R0_FACTOR: float = 1.55
 #: Exponent of the confining potential.
 DEFAULT_POWER: float = 2.0
 #: Rules for the atoms' configuration: "solid" (d block: d^(n-1) s^1, as in the metal) or
@@ -433,6 +440,8 @@ def confined_atom(
     grid: RadialGrid | None = None,
     configuration: str = "solid",
     onsite: str = DEFAULT_ONSITE,
+    r0_factors: Mapping[str, float] | None = None,
+    density_factor: float | None = None,
 ) -> ConfinedAtom:
     """Confined valence orbitals, density, neutral-atom potential and onsite energies.
 
@@ -461,6 +470,12 @@ def confined_atom(
         "[Ar] 3d9 4s1" (empty valence levels are added with occupation 0).
     onsite : {"eigenvalue", "basis"}
         Onsite-energy rule (module docstring).
+    r0_factors : mapping, optional
+        Per-shell default rule {"s": 1.45, ...}: r₀ = factor × r_cov for shells without an
+        explicit radius (default :data:`SHELL_R0_FACTORS`; shells not named keep those).
+    density_factor : float, optional
+        Density radius factor when ``r0_density`` is not given (default
+        :data:`DENSITY_R0_FACTOR`).
 
     Returns
     -------
@@ -484,11 +499,18 @@ def confined_atom(
         raise SettingsError(f"power = {power!r}; accepted: an exponent 0 < power <= 20")
     levels = valence_shells(z, shells)
     r0_wf = None if r0 is None else _check_r0(r0, "r0")
+    factors = dict(SHELL_R0_FACTORS)
+    for sh, val in (r0_factors or {}).items():
+        if sh not in SHELL_R0_FACTORS:
+            raise SettingsError(f"r0_factors has shell {sh!r}; accepted: s, p, d")
+        factors[sh] = _check_r0(val, f"r0_factors[{sh!r}]")
+    rho_factor = (DENSITY_R0_FACTOR if density_factor is None
+                  else _check_r0(density_factor, "density_factor"))
     if r0_density is None:
-        r0_rho = default_r0(z, DENSITY_R0_FACTOR)
+        r0_rho = default_r0(z, rho_factor)
     else:
         r0_rho = _check_r0(r0_density, "r0_density")
-    per_shell = {sh: default_r0(z, SHELL_R0_FACTORS[sh]) if r0_wf is None else r0_wf
+    per_shell = {sh: default_r0(z, factors[sh]) if r0_wf is None else r0_wf
                  for sh in levels}
     for sh, val in (shell_r0 or {}).items():
         if sh not in levels:
@@ -572,8 +594,8 @@ def confined_atom(
             "r0_orbitals_bohr": {sh: per_shell[sh] for sh in levels},
             "r0_density_bohr": r0_rho,
             "default_rule": "r0 = "
-            + ", ".join(f"{f:g} r_cov ({sh})" for sh, f in SHELL_R0_FACTORS.items())
-            + f", {DENSITY_R0_FACTOR:g} r_cov (density); r_cov from ase.data.covalent_radii",
+            + ", ".join(f"{f:g} r_cov ({sh})" for sh, f in factors.items())
+            + f", {rho_factor:g} r_cov (density); r_cov from ase.data.covalent_radii",
             "covalent_radius_angstrom": float(covalent_radii[z]),
         },
         "onsite": _ONSITE_TEXT[onsite],
