@@ -127,7 +127,7 @@ SHELL_R0_FACTORS: dict[str, float] = {"s": 1.29, "p": 1.71, "d": 1.68}
 DENSITY_R0_FACTOR: float = 1.28
 #: The rule of ``valband-tc-2026`` (fitted to band positions only; kept so that sets whose
 #: provenance predates the factor settings regenerate with the factors they were made with).
-LEGACY_SHELL_R0_FACTORS: dict[str, float] = {"s": 1.29, "p": 1.71, "d": 1.68}
+LEGACY_SHELL_R0_FACTORS: dict[str, float] = {"s": 1.45, "p": 1.8, "d": 0.85}
 #: Density factor of ``valband-tc-2026``.
 LEGACY_DENSITY_R0_FACTOR: float = 1.55
 #: Exponent of the confining potential.
