@@ -10,7 +10,8 @@ The free parameters are the factors of the default rule r₀ = factor × r_cov
 3. the one-element parameter set with the generator's cutoff tolerances, the fcc metal at
    ASE's reference lattice constant, a 12³ Monkhorst–Pack DOS (Gaussian 0.1 eV) for E_F and
    the d-band centre, the labelled levels at Γ, X, L (:func:`valband.twocentre.shape.fcc_levels`)
-   and the nearest-neighbour dd ratios and distance exponent (:func:`~valband.twocentre.shape.dd_shape`).
+   and the nearest-neighbour dd ratios and distance exponent
+   (:func:`~valband.twocentre.shape.dd_shape`).
 
 Cost = Σ ((model − target) / tolerance)² over the targets with role "fit" of
 ``valband/data/targets/confinement-targets.toml`` (every target's source is in that file); a
@@ -147,9 +148,10 @@ def summary(rows: list[dict]) -> str:
                      f"{r['tolerance']:.2f}  model {r['model']:+7.3f}  z {r['z']:+6.2f}")
     z = np.array([r["z"] for r in rows])
     err = np.array([abs(r["model"] - r["value"]) for r in rows])
+    ev = [e for e, r in zip(err, rows, strict=True)
+          if r["quantity"].split(":")[0] in ("level", "spacing", "centre")]
     lines.append(f"  rms z {np.sqrt(np.mean(z ** 2)):.3f}, |z| <= 1 for {np.sum(np.abs(z) <= 1)}"
-                 f"/{len(z)}; mean |error| of the eV targets "
-                 f"{np.mean([e for e, r in zip(err, rows, strict=True) if r['quantity'].split(':')[0] in ('level', 'spacing', 'centre')]):.3f} eV")  # noqa: E501
+                 f"/{len(z)}; mean |error| of the eV targets {np.mean(ev):.3f} eV")
     return "\n".join(lines)
 
 
