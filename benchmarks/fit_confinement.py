@@ -22,7 +22,9 @@ cost; they are evaluated at the start and the end and reported separately.
 Search: Nelder–Mead (scipy.optimize.minimize) from the given start (default: the factors of
 valband-tc-2026), initial simplex +12 % per factor, ``--max-evaluations`` (default 80). No
 random choice is made; ``--seed`` (recorded) perturbs the start by ±5 % for restarts.
-``--scan`` prints the cost and the measures along the d factor instead (others fixed).
+``--scan`` prints the cost and the measures along the d factor instead (others fixed). Six
+start factors (s p d3 d4 d5 density) fit one d factor per row instead (an alternative tried
+and recorded in valband.twocentre.confinement).
 
 Run: ``PYTHONPATH=src python benchmarks/fit_confinement.py [--log fit.json]``
 (about 4 s per evaluation on one core).
@@ -55,12 +57,19 @@ def _lattice(el: str) -> float:
     return float(reference_states[atomic_numbers[el]]["a"])
 
 
+ROW = {"Ni": "d3", "Cu": "d3", "Pd": "d4", "Ag": "d4", "Rh": "d4", "Pt": "d5", "Au": "d5",
+       "Ir": "d5"}
+
+
 def atoms_for(metals, factors: dict[str, float]):
+    """Confined atoms with the rule ``factors`` (a key d3/d4/d5 overrides d for that row)."""
     from valband.twocentre import confined_atom
 
-    f = {k: factors[k] for k in ("s", "p", "d")}
-    return {el: confined_atom(el, r0_factors=f, density_factor=factors["density"])
-            for el in metals}
+    out = {}
+    for el in metals:
+        f = {"s": factors["s"], "p": factors["p"], "d": factors.get(ROW[el], factors.get("d"))}
+        out[el] = confined_atom(el, r0_factors=f, density_factor=factors["density"])
+    return out
 
 
 def _measure(atom) -> dict:
@@ -135,10 +144,12 @@ def cost(meas: dict) -> float:
 
 
 KEYS = ("s", "p", "d", "density")
+KEYS_PER_ROW = ("s", "p", "d3", "d4", "d5", "density")
 
 
 def _factors(x) -> dict[str, float]:
-    return {k: float(v) for k, v in zip(KEYS, x, strict=True)}
+    keys = KEYS if len(x) == len(KEYS) else KEYS_PER_ROW
+    return {k: float(v) for k, v in zip(keys, x, strict=True)}
 
 
 def summary(rows: list[dict]) -> str:
@@ -157,8 +168,10 @@ def summary(rows: list[dict]) -> str:
 
 def main(argv=None) -> int:
     p = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    p.add_argument("--start", type=float, nargs=4, metavar=("S", "P", "D", "DENSITY"),
-                   default=[START[k] for k in KEYS])
+    p.add_argument("--start", type=float, nargs="+", metavar="F",
+                   default=[START[k] for k in KEYS],
+                   help="start factors: s p d density, or s p d3 d4 d5 density (a d factor "
+                   "per row, the alternative of the docstring of valband.twocentre.confinement)")
     p.add_argument("--max-evaluations", type=int, default=80)
     p.add_argument("--seed", type=int, default=None, help="perturb the start by ±5 %% (restarts)")
     p.add_argument("--scan", type=float, nargs="*", default=None, metavar="D",
@@ -167,6 +180,8 @@ def main(argv=None) -> int:
     p.add_argument("--log", default=None, help="write every evaluation to this JSON file")
     args = p.parse_args(argv)
     x0 = np.array(args.start, dtype=float)
+    if x0.size not in (len(KEYS), len(KEYS_PER_ROW)):
+        p.error(f"--start takes {len(KEYS)} or {len(KEYS_PER_ROW)} factors")
     if args.seed is not None:
         x0 = x0 * (1 + 0.05 * np.random.default_rng(args.seed).uniform(-1, 1, x0.size))
     log: list[dict] = []
@@ -180,15 +195,17 @@ def main(argv=None) -> int:
         except Exception as exc:  # an atom that does not converge: a large cost, not a crash
             meas, c = {"error": repr(exc)}, PENALTY * 10
         log.append({"factors": fac, "cost": c})
-        print(f"eval {len(log):3d}  s {fac['s']:.4f} p {fac['p']:.4f} d {fac['d']:.4f} "
-              f"density {fac['density']:.4f}  cost {c:9.3f}  ({time.perf_counter() - t0:.0f} s)",
+        text = " ".join(f"{k} {v:.4f}" for k, v in fac.items())
+        print(f"eval {len(log):3d}  {text}  cost {c:9.3f}  ({time.perf_counter() - t0:.0f} s)",
               flush=True)
         return c
 
     if args.scan is not None:
         for dval in args.scan:
             fac = _factors(x0)
-            fac["d"] = dval
+            for key in ("d", "d3", "d4", "d5"):
+                if key in fac:
+                    fac[key] = dval
             meas = evaluate(fac, FIT_METALS + HELD_OUT_METALS)
             print(f"d factor {dval}: cost {cost(meas):.3f}")
             print(summary(residuals(meas, "fit")))
@@ -198,7 +215,8 @@ def main(argv=None) -> int:
     if not args.evaluate:
         from scipy.optimize import minimize
 
-        simplex = np.vstack([x0] + [x0 * (1 + 0.12 * np.eye(4)[i]) for i in range(4)])
+        n = x0.size
+        simplex = np.vstack([x0] + [x0 * (1 + 0.12 * np.eye(n)[i]) for i in range(n)])
         res = minimize(f, x0, method="Nelder-Mead",
                        options={"initial_simplex": simplex, "maxfev": args.max_evaluations,
                                 "xatol": 5e-3, "fatol": 1e-2})
