@@ -34,7 +34,8 @@ Cordero et al., Dalton Trans. 2008, 2832, Å → bohr), one rule for all element
 (Cu: s 3.22, p 4.27, d 4.19, density 3.19 bohr), fitted to band shape and position (second
 fit, below); the set ``valband-tc2-2026`` is made with them. The first rule, s 1.45, p 1.80,
 d 0.85, density 1.55 (:data:`LEGACY_SHELL_R0_FACTORS`, :data:`LEGACY_DENSITY_R0_FACTOR`), made
-``valband-tc-2026``; a set whose provenance predates the factor settings regenerates with it.
+``valband-tc-2026``; a set whose provenance predates the factor settings regenerates with it,
+and ``valband params generate --rule s=1.45,p=1.8,d=0.85,density=1.55`` applies it to new sets.
 
 First fit (``valband-tc-2026``; band positions). How they were chosen (all measured with this
 code; band energies of fcc Cu, a = 3.615 Å (3.61 Å in rows 1–5), eV relative to E_F; "window
