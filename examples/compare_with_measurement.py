@@ -14,6 +14,7 @@ from __future__ import annotations
 import argparse
 from pathlib import Path
 
+from valband.defaults import DEFAULT_PARAMETER_SET
 from valband.params import load_parameter_set
 from valband.report.plots import new_figure, save_figure
 from valband.spectra import read_spectrum
@@ -21,7 +22,8 @@ from valband.spectra.fit import fit_spectrum
 from valband.spectra.plot import plot_fit
 from valband.structure import read_structure
 from valband.tb import build_model
-from valband.workflows import DOSSettings, compute_dos
+from valband.workflows import DOSSettings
+from valband.workflows.methods import dos_by_method
 
 HERE = Path(__file__).resolve().parent
 FILES = {"Cu": "Cu_fcc.cif", "Cu3Pd": "Cu3Pd_L12.cif", "CuPd": "CuPd_B2.cif",
@@ -39,8 +41,10 @@ def main() -> None:
     measured = read_spectrum(HERE / "demo-measurements" / "halvard-ridge-valence-bands.vms",
                              block=args.block)
     model = build_model(read_structure(HERE.parent / "structures" / FILES[args.block]),
-                        load_parameter_set("harrison-universal"))
-    dos = compute_dos(model, DOSSettings(mesh=args.mesh))
+                        params := load_parameter_set(DEFAULT_PARAMETER_SET))
+    # the defaults of `valband compare`: neutrality for compounds, spin-orbit for Pd
+    dos, _ = dos_by_method(model, {"kind": "file"}, DOSSettings(mesh=args.mesh), params=params,
+                           soc=None, context="spectra")
     fit = fit_spectrum(measured, dos, background="shirley")   # hν from the file (Al Kα)
 
     print(f"{args.block}: {fit.n_points} points, reduced χ² {fit.reduced_chi2:.3g}, "

@@ -14,11 +14,13 @@ import argparse
 
 import numpy as np
 
+from valband.defaults import DEFAULT_PARAMETER_SET
 from valband.params import load_parameter_set
 from valband.report.plots import new_figure, save_figure
 from valband.structure import build_structure, random_configurations
 from valband.tb import build_model
-from valband.workflows import DOSSettings, compute_dos, describe
+from valband.workflows import DOSSettings, describe
+from valband.workflows.methods import dos_by_method
 
 FRACTIONS = (0.0, 0.25, 0.5, 0.75, 1.0)
 
@@ -32,17 +34,18 @@ def main() -> None:
     ap.add_argument("--seed", type=int, default=11, help="seed of the configurations")
     args = ap.parse_args()
 
-    params = load_parameter_set("harrison-universal")
+    params = load_parameter_set(DEFAULT_PARAMETER_SET)
     parent = build_structure("Cu fcc 3.75")   # near the Vegard average of Cu and Pd
     rows = []
     print(f"random fcc Cu(1-x)Pd(x), 8-atom supercells, {args.configs} configurations per x, "
-          f"seed {args.seed}")
+          f"seed {args.seed}, {params.name}, local charge neutrality per site (the default)")
     for x in FRACTIONS:
         centres = []
         n = 1 if x in (0.0, 1.0) else args.configs
         for conf in random_configurations(parent, {"Cu": 1 - x, "Pd": x}, 2, n_configs=n,
                                           seed=args.seed):
-            dos = compute_dos(build_model(conf.structure, params), DOSSettings(mesh=args.mesh))
+            dos, _ = dos_by_method(build_model(conf.structure, params), {"kind": "random"},
+                                   DOSSettings(mesh=args.mesh), params=params)
             centres.append(describe(dos, "d").cell.centre)
         rows.append((x, float(np.mean(centres)), float(np.std(centres))))
         print(f"  x = {x:4.2f}: d-band centre {rows[-1][1]:+.3f} ± {rows[-1][2]:.3f} eV")

@@ -11,11 +11,13 @@ from __future__ import annotations
 import argparse
 from pathlib import Path
 
+from valband.defaults import DEFAULT_PARAMETER_SET
 from valband.params import load_parameter_set
 from valband.report.plots import new_figure, plot_dos, save_figure
 from valband.structure import read_structure
 from valband.tb import build_model
-from valband.workflows import DOSSettings, compute_dos, describe
+from valband.workflows import DOSSettings, describe
+from valband.workflows.methods import dos_by_method
 
 HERE = Path(__file__).resolve().parent
 
@@ -28,12 +30,16 @@ def main() -> None:
     args = ap.parse_args()
 
     structure = read_structure(HERE.parent / "structures" / "Cu3Pd_L12.cif")
-    model = build_model(structure, load_parameter_set("harrison-universal"))
-    dos = compute_dos(model, DOSSettings(mesh=args.mesh, method="tetrahedron"))
+    params = load_parameter_set(DEFAULT_PARAMETER_SET)
+    model = build_model(structure, params)
+    # the program's default method: local charge neutrality per site for a compound
+    dos, record = dos_by_method(model, {"kind": "file"},
+                                DOSSettings(mesh=args.mesh, method="tetrahedron"), params=params)
     table = describe(dos, "d", window=(-10.0, 4.0))
 
     print(f"{structure.formula}: {model.n_orbitals} orbitals, E_F = {dos.fermi_level:.3f} eV "
-          f"(model scale), {dos.settings['mesh']['n_irreducible']} irreducible k-points")
+          f"(model scale), {dos.settings['mesh']['n_irreducible']} irreducible k-points, "
+          f"{params.name}, {record['method']}")
     print(f"d-band centre per element over {table.window} eV relative to E_F:")
     for element, d in table.elements.items():
         print(f"  {element:2s}  centre {d.centre:+.3f} eV  width {d.width:.3f} eV  "

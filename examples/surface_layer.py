@@ -2,10 +2,9 @@
 
 The fictional Halvard Ridge group wants the d-band descriptors of the atoms an adsorbate
 actually meets. A 5-layer Pt(111) slab with vacuum is built from a spec, its layer-resolved d
-DOS computed, and the surface layer compared with the central (bulk-like) layer. Without
-local charge neutrality the first moment of each layer's d band stays at the onsite level, so
-look at the width (the surface band narrows, common practice) and at the upper edge. Model
-predictions are estimates, not measurements.
+DOS computed with the program's default local charge neutrality per site, and the surface
+layer compared with the central (bulk-like) layer: the narrower surface band rises towards
+E_F to keep its charge (common practice). Model predictions are estimates, not measurements.
 
 Usage: python examples/surface_layer.py [--mesh N] [--out FILE.png] [--layers L]
 """
@@ -14,11 +13,13 @@ from __future__ import annotations
 
 import argparse
 
+from valband.defaults import DEFAULT_PARAMETER_SET
 from valband.params import load_parameter_set
 from valband.report.plots import new_figure, save_figure
 from valband.structure import load_structure_with_info
 from valband.tb import build_model
-from valband.workflows import DOSSettings, compute_dos, describe
+from valband.workflows import DOSSettings, describe
+from valband.workflows.methods import dos_by_method
 
 
 def main() -> None:
@@ -30,12 +31,14 @@ def main() -> None:
     args = ap.parse_args()
 
     structure, info = load_structure_with_info(f"slab Pt fcc111 layers={args.layers} vacuum=12")
-    model = build_model(structure, load_parameter_set("harrison-universal"))
-    dos = compute_dos(model, DOSSettings(mesh=f"{args.mesh}x{args.mesh}x1"))
+    params = load_parameter_set(DEFAULT_PARAMETER_SET)
+    model = build_model(structure, params)
+    dos, record = dos_by_method(model, info, DOSSettings(mesh=f"{args.mesh}x{args.mesh}x1"),
+                                params=params)
     table = describe(dos, "d")
     depth = info["depth"]            # 0 = a surface layer, counted from the nearer surface
     print(f"Pt(111), {args.layers} layers, mesh {args.mesh}x{args.mesh}x1, E_F = "
-          f"{dos.fermi_level:.3f} eV (model scale)")
+          f"{dos.fermi_level:.3f} eV (model scale), {params.name}, {record['method']}")
     print("site  depth  d-band centre (eV)  width (eV)  upper edge (eV)")
     for i, d in table.sites.items():
         print(f"{i:4d}  {depth[i]:5d}  {d.centre:18.3f}  {d.width:10.3f}  {d.upper_edge:15.3f}")

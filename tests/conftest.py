@@ -10,7 +10,8 @@ import pytest
 os.environ.setdefault("MPLBACKEND", "Agg")
 
 REPO = Path(__file__).resolve().parents[1]
-SHARED_REFERENCE = REPO.parent / "shared" / "reference"
+#: Reference data of the tests (published values, with sources: tests/data/README.md).
+REFERENCE_DATA = REPO / "tests" / "data"
 
 
 @pytest.fixture(autouse=True)

@@ -15,6 +15,7 @@ import tomllib
 from importlib import resources
 from pathlib import Path
 
+from valband.defaults import DEFAULT_PARAMETER_SET
 from valband.output import prepare_out_dir, write_csv
 from valband.writers import summary_of, write_summary
 
@@ -49,7 +50,7 @@ def demo_candidates() -> tuple[str, list[dict]]:
     return spec["scenario"], cands
 
 
-def run_demo(out_dir: str | Path, params: str = "valband-tc-2026", mesh: str = "20",
+def run_demo(out_dir: str | Path, params: str = DEFAULT_PARAMETER_SET, mesh: str = "20",
              fmt: str = "png", progress: bool = False, log=print) -> dict:
     """Run every candidate; return (and write) the demo summary with its screening table."""
     from valband.demo_measurements import shipped_file
@@ -61,6 +62,7 @@ def run_demo(out_dir: str | Path, params: str = "valband-tc-2026", mesh: str = "
     from valband.structure import read_structure
     from valband.tb import build_model
     from valband.workflows import DOSSettings
+    from valband.workflows.methods import dos_by_method
 
     out = prepare_out_dir(out_dir)
     scenario, cands = demo_candidates()
@@ -70,13 +72,20 @@ def run_demo(out_dir: str | Path, params: str = "valband-tc-2026", mesh: str = "
     rows = []
     for c in cands:
         log(f"  {c['name']:8s} {c['note']}")
-        model = build_model(read_structure(c["path"]), pset)
+        structure = read_structure(c["path"])
+        model = build_model(structure, pset)
         sub = out / c["name"]
-        summary, dos, table = dos_job(model, settings, sub, fmt=fmt, progress=progress)
+        info = {"kind": "file"}
+        dos, record = dos_by_method(model, info, settings, params=pset, progress=progress)
+        summary, dos, table = dos_job(model, settings, sub, fmt=fmt, progress=progress, dos=dos,
+                                      extra={"method": record})
         bands_job(model, sub / "bands", mesh=str(min(int(mesh.split("x")[0]), 16)), fmt=fmt,
                   progress=progress)
+        spec_dos, spec_record = dos_by_method(model, info, settings, params=pset, soc=None,
+                                              context="spectra", progress=progress)
         simulate_job(model, settings, sub / "spectrum", "Al-Ka", 300.0, 0.3, (0.02, 0.02),
-                     (54.735610317245346, "unpolarized"), fmt, dos=dos)
+                     (54.735610317245346, "unpolarized"), fmt, dos=spec_dos,
+                     extra={"method": spec_record})
         row = {
             "name": c["name"], "formula": model.structure.formula, "note": c["note"],
             "d_band_centre_eV": table.cell.centre, "d_band_width_eV": table.cell.width,
@@ -87,8 +96,8 @@ def run_demo(out_dir: str | Path, params: str = "valband-tc-2026", mesh: str = "
         }
         if c["name"] in measured:
             _, fit, _, _ = compare_job(model, settings, measured[c["name"]], sub / "compare",
-                                       photon_energy="Al-Ka", fmt=fmt, dos=dos,
-                                       free=DEMO_FIT_FREE)
+                                       photon_energy="Al-Ka", fmt=fmt, dos=spec_dos,
+                                       free=DEMO_FIT_FREE, extra={"method": spec_record})
             row |= {"measured_band_centre_eV": fit.band_centre.get("measured_eV"),
                     "fit_shift_eV": fit.value("shift"), "fit_shift_err_eV": fit.error("shift"),
                     "fit_reduced_chi2": fit.reduced_chi2, "fit_r_factor": fit.r_factor}

@@ -2,7 +2,7 @@
 
 sources
 - Ground configurations of Cu, Ag, Pd, Pt, Au, Ni, Fe: NIST SRD 141 as listed in
-  ``shared/reference/README.md``.
+  ``tests/data/README.md``.
 - The other exceptions to Madelung filling (Cr, Nb, Mo, Ru, Rh, La, Ce, Gd, Ac, Th, Pa, U) and
   the Madelung examples: experimental ground configurations of the NIST Atomic Spectra Database
   (from memory; these are textbook periodic-table facts).
@@ -43,7 +43,7 @@ def test_atom_ground_state_counts_and_capacities(z):
 
 
 EXPECTED = {
-    # shared/reference/README.md (NIST SRD 141)
+    # tests/data/README.md (NIST SRD 141)
     "Fe": "[Ar] 3d6 4s2",
     "Ni": "[Ar] 3d8 4s2",
     "Cu": "[Ar] 3d10 4s1",

@@ -15,25 +15,31 @@ from valband.errors import SettingsError
 
 
 def _nist_d_splittings(reference_dir):
-    path = reference_dir / "nist_srd141_rlda_d_levels.csv"
-    if not path.exists():
-        pytest.skip(f"shared reference file {path} not present")
+    path = reference_dir / "nist_srd141_rlda_d_levels.csv"  # missing: the test fails
     with open(path) as fh:
         return {row["element"]: (row["shell"], float(row["splitting_eV"])) for row in csv.DictReader(fh)}
 
 
 @pytest.fixture(scope="module")
 def reference_dir(repo_root):
-    return repo_root.parent / "shared" / "reference"
+    return repo_root / "tests" / "data"
 
 
+@pytest.mark.parametrize("exchange", ["auto", "off"])
 @pytest.mark.parametrize("element", ["Cu", "Ag", "Au"])
-def test_d_splitting_matches_relativistic_lda(reference_dir, element):
+def test_d_splitting_matches_relativistic_lda(reference_dir, element, exchange):
     # NIST SRD 141 (Kotochigova et al., Phys. Rev. A 55, 191 (1997)), fully relativistic LDA:
-    # the d_{5/2}–d_{3/2} splitting equals (5/2)·ξ_d to first order. Measured agreement is
-    # within 1 %; the tolerance allows 3 % for the first-order treatment on scalar orbitals.
+    # the d_{5/2}–d_{3/2} splitting equals (5/2)·ξ_d to first order. The first-order ξ on one
+    # scalar-relativistic radial function misses the j dependence of the Dirac radial
+    # functions, a second-order effect that grows with Z (common practice). Measured
+    # (5/2)ξ_d − NIST with the MacDonald–Vosko exchange (default, "auto"): Cu −0.15 %,
+    # Ag −0.41 %, Au −1.33 %; without it ("off"): −0.07 %, −0.28 %, −1.02 %. The correction
+    # changes ξ by less than the first-order error, so the splitting cannot tell whether NIST
+    # includes it (the d-level positions can: tests/atom/test_atom_relativistic.py).
+    # Tolerance 3 % for the first-order treatment.
     shell, splitting = _nist_d_splittings(reference_dir)[element]
-    atom = solve_atom(element, relativity="scalar")
+    atom = solve_atom(element, relativity="scalar", relativistic_exchange=exchange)
+    assert atom.relativistic_exchange is (exchange == "auto")
     assert 2.5 * spin_orbit_constant_ev(atom, shell) == pytest.approx(splitting, rel=0.03)
 
 

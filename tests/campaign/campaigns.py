@@ -15,7 +15,7 @@ seed = 11
 
 [defaults]
 descriptors = ["d"]
-window = [-12.0, 6.0]
+window = [-7.0, 5.0]
 
 [defaults.kmesh]
 mesh = 4

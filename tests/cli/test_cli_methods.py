@@ -55,7 +55,8 @@ def test_spin_orbit_is_recorded(capsys):
 @pytest.mark.parametrize("argv, word", [
     (["describe", "Cu fcc", "--alloy-method", "cpa", "--mesh", "4"], "random alloy spec"),
     (["describe", "Cu fcc", "--order", "afm", "--mesh", "4"], "need --magnetic"),
-    (["describe", "Cu fcc", "--soc", "--neutral", "site", "--mesh", "4"], "cannot be combined"),
+    (["describe", "random Cu0.5Pd0.5 fcc 1x1x2 seed=1", "--alloy-method", "vca", "--neutral",
+      "site", "--mesh", "4"], "cannot be combined"),
     (["describe", "Fe bcc", "--magnetic", "--stoner", "Fe:0.9", "--mesh", "4"], "EL=VALUE"),
     (["describe", "Cu fcc", "--neutral", "layer", "--mesh", "4"], "needs a slab"),
 ])

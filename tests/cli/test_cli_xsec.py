@@ -47,6 +47,8 @@ def test_json_schema_and_values(capsys):
     data = json.loads(out)
     assert data["schema"] == "valband.xsec" and data["schema_version"] == 1
     assert data["element"] == "Cu" and data["photon_energy_ev"] == 1486.6
+    # the output states the functional of the atom behind the table
+    assert "MacDonald & Vosko" in data["functional"] and data["relativity"] == "scalar"
     subs = {s["subshell"]: s for s in data["subshells"]}
     assert set(subs) == {"3d", "4s", "4p"}
     d = subs["3d"]
@@ -61,6 +63,7 @@ def test_direct_option_equals_direct_calculation(capsys):
     assert code == 0
     data = json.loads(out)
     assert data["source"] == "direct calculation" and data["photon_energy_ev"] == 40.81
+    assert "MacDonald & Vosko" in data["functional"]
     direct = {x.subshell: x for x in valence_cross_sections("Au", 40.81)}
     for s in data["subshells"]:
         assert s["sigma_per_electron_mb"] == direct[s["subshell"]].sigma_per_electron_mb

@@ -9,7 +9,7 @@ from typing import Any
 
 REPO = Path(__file__).resolve().parents[2]
 README = REPO / "src" / "valband" / "params" / "README.md"
-NIST_CSV = REPO / ".." / "shared" / "reference" / "nist_srd141_lda.csv"
+NIST_CSV = REPO / "tests" / "data" / "nist_srd141_lda.csv"
 
 
 def readme_toml_blocks() -> list[str]:

@@ -149,10 +149,9 @@ def test_cutoffs_of_the_shipped_like_pairs_keep_two_shells(ps):
         assert np.count_nonzero(h) == {"fcc": 18, "bcc": 14}[kind] * len(atoms)
 
 
-def test_nist_values_copied_from_the_shared_csv():
-    # NIST SRD 141 (Kotochigova, Levine, Shirley, Stiles, Clark, PRA 55, 191 (1997)), LDA
-    if not NIST_CSV.is_file():
-        pytest.skip("shared reference table not present")
+def test_nist_values_copied_from_the_reference_csv():
+    # NIST SRD 141 (Kotochigova, Levine, Shirley, Stiles, Clark, PRA 55, 191 (1997)), LDA;
+    # tests/data/nist_srd141_lda.csv (a missing file fails the test)
     table = {}
     with open(NIST_CSV, newline="") as fh:
         for row in csv.DictReader(fh):

@@ -11,8 +11,8 @@ from valband.params import ParameterSet, load_parameter_set
 from valband.structure import build_structure
 from valband.tb import build_model
 
-#: The shared reference files beside the repository.
-SHARED_REFERENCE = Path(__file__).resolve().parents[2].parent / "shared" / "reference"
+#: Reference data of the tests inside the repository (sources: tests/data/README.md).
+REFERENCE_DATA = Path(__file__).resolve().parents[1] / "data"
 
 #: Elements the moment and non-magnetism tests need, with their lattices (ASE reference states).
 METALS = {"Fe": "bcc", "Co": "hcp", "Ni": "fcc", "Cu": "fcc", "Ag": "fcc", "Au": "fcc",

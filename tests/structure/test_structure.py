@@ -177,3 +177,14 @@ def test_bad_build_specs(spec):
 def test_neither_file_nor_spec():
     with pytest.raises(StructureError, match="neither an existing structure file nor a build spec"):
         load_structure("copper please")
+
+
+@pytest.mark.parametrize("spec, word", [
+    ("Cu hcp 2.5 4.1", "given twice"),          # a second bare number was taken as a
+    ("Cu fcc 3.61 9.99", "given twice"),
+    ("Cu fcc c=4", "hcp only"),                 # c on a cubic lattice was ignored
+    ("Co hcp 2.5 c=4 c=4.1", "given twice"),
+])
+def test_every_spec_number_is_used_or_refused(spec, word):
+    with pytest.raises(StructureError, match=word):
+        build_structure(spec)

@@ -18,7 +18,7 @@ from valband.twocentre import (
     valence_shells,
 )
 
-NIST = Path(__file__).resolve().parents[2].parent / "shared" / "reference" / "nist_srd141_lda.csv"
+NIST = Path(__file__).resolve().parents[1] / "data" / "nist_srd141_lda.csv"
 
 
 def test_valence_shells_of_the_trade():
@@ -47,6 +47,9 @@ def test_cu_record(cu):
     assert conf["power"] == 2 and set(conf["r0_orbitals_bohr"]) == {"s", "p", "d"}
     for key in ("method", "functional", "relativity", "grid", "valband_version"):
         assert key in cu.settings
+    # scalar-relativistic atoms carry the MacDonald–Vosko relativistic exchange by default
+    assert cu.settings["relativistic_exchange"] is True
+    assert "MacDonald & Vosko" in cu.settings["functional"]
 
 
 @pytest.mark.parametrize("shell", ["s", "p", "d"])
@@ -76,7 +79,6 @@ def test_confinement_raises_levels_and_density_is_neutral(cu):
     assert np.all(cu.neutral_potential[r < 10] < 0)
 
 
-@pytest.mark.skipif(not NIST.exists(), reason="shared NIST reference file not available")
 def test_nonrelativistic_onsite_energies_match_nist():
     # NIST SRD 141 (Kotochigova et al., Phys. Rev. A 55, 191 (1997)), LDA with VWN: the onsite
     # energies are the free-atom eigenvalues, so they must reproduce the table (1e-5 Ha, the
@@ -87,6 +89,7 @@ def test_nonrelativistic_onsite_energies_match_nist():
             if row["element"] == "Cu":
                 ref[row["quantity"]] = float(row["value_hartree"])
     atom = confined_atom("Cu", relativity="none")
+    assert atom.settings["relativistic_exchange"] is False  # NIST's LDA tables have none
     assert atom.orbital("s").free_energy == pytest.approx(ref["eps_4s"], abs=2e-5)
     assert atom.orbital("d").free_energy == pytest.approx(ref["eps_3d"], abs=2e-5)
 

@@ -109,3 +109,36 @@ def test_factor_rule_reaches_the_atoms():
         confined_atom("Cu", r0_factors={"f": 1.0})
     with pytest.raises(SettingsError, match="density_factor"):
         confined_atom("Cu", density_factor=-1.0)
+
+
+def test_relativistic_exchange_setting_and_old_records():
+    # default: "auto" (on with scalar relativity); a record written before the setting existed
+    # (valband-tc-2026) reads as "off", the atoms it was generated with
+    assert GenerationSettings().relativistic_exchange == "auto"
+    with pytest.raises(SettingsError, match="relativistic_exchange.*auto, on, off"):
+        GenerationSettings(relativistic_exchange="yes").validate()
+    assert GenerationSettings(relativistic_exchange="off").atom_options("Cu")[
+        "relativistic_exchange"] == "off"
+    old = load_parameter_set("valband-tc-2026").provenance
+    assert '"relativistic_exchange"' not in old.split(" | ", 1)[0]
+    assert settings_from_provenance(old).relativistic_exchange == "off"
+
+
+def test_generated_set_records_the_exchange_and_reproduces_it():
+    s = GenerationSettings(n_distances=8, quadrature=COARSE, distance_range=(0.9, 3.2))
+    data, _ = generate_parameter_set(["Al"], s, name="t")
+    ps = ParameterSet.from_dict(data)
+    back = settings_from_provenance(ps.provenance)
+    assert back.relativistic_exchange == "auto" and back == s
+    assert "MacDonald & Vosko" in ps.provenance
+    assert '"relativistic_exchange": true' in ps.provenance
+    assert "MacDonald-Vosko" in ps.element("Al").provenance["onsite.s"]
+    off, _ = generate_parameter_set(["Al"], GenerationSettings(
+        n_distances=8, quadrature=COARSE, distance_range=(0.9, 3.2), relativistic_exchange="off"),
+        name="t")
+    assert '"relativistic_exchange": false' in off["provenance"]
+    # Al (Z = 13): the correction is tiny but real in the onsite energies (β ≈ 0.2 at the
+    # nucleus; the 3s level moves by well under 10 meV, common practice for light atoms)
+    d = abs(data["elements"]["Al"]["onsite"]["s"]["value"]
+            - off["elements"]["Al"]["onsite"]["s"]["value"])
+    assert 0 < d < 0.01

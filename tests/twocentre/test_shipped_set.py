@@ -53,6 +53,8 @@ def test_contents(ps):
         assert ps.element(el).shells == ("s", "p")
     s = settings_from_provenance(ps.provenance)
     assert s.relativity == "scalar" and s.configuration == "solid"
+    # generated before the relativistic exchange correction existed: its record reads "off"
+    assert s.relativistic_exchange == "off"
 
 
 def test_regenerated_pair_reproduces_the_shipped_numbers(ps):

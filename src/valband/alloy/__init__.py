@@ -15,6 +15,7 @@ from valband.alloy.neutrality import (
     NeutralitySettings,
     neutral_dos,
     shifted_model,
+    site_charge_residuals,
     solve_neutrality,
 )
 from valband.alloy.vca import (
@@ -46,6 +47,7 @@ __all__ = [
     "neutral_dos",
     "resolve_groups",
     "shifted_model",
+    "site_charge_residuals",
     "solve_neutrality",
     "vca_model",
     "vca_scan",

@@ -1,5 +1,8 @@
 """Radial Kohn–Sham atom: LDA (VWN or PW92), non- or scalar-relativistic, bound states.
 
+A scalar-relativistic atom uses the MacDonald–Vosko relativistic exchange by default
+(:mod:`valband.atom.xc`); ``AtomResult.functional`` says what was used.
+
 Public entry points
     :func:`solve_atom` → :class:`AtomResult`; :func:`ground_state_configuration` and
     :func:`parse_configuration` for electron configurations. Internals work in Hartree and

@@ -48,7 +48,7 @@ from .configurations import (
 )
 from .grid import RadialGrid, hartree_potential, make_grid
 from .radial import alpha_squared, solve_bound_state
-from .xc import CORRELATIONS, lda_xc
+from .xc import CORRELATIONS, functional_description, lda_xc, resolve_relativistic_exchange
 
 __all__ = [
     "HARTREE_EV",
@@ -168,6 +168,9 @@ class AtomResult:
         ∫|ρ_out − ρ_in| 4πr² dr of the last iteration (electrons).
     energy_change : float
         |ΔE| between the last two iterations (Hartree).
+    relativistic_exchange : bool
+        Whether the exchange carries the MacDonald–Vosko relativistic correction
+        (:mod:`valband.atom.xc`); on by default for relativity="scalar".
     """
 
     z: int
@@ -188,6 +191,12 @@ class AtomResult:
     converged: bool
     density_residual: float
     energy_change: float
+    relativistic_exchange: bool = False
+
+    @property
+    def functional(self) -> str:
+        """Text of the exchange–correlation functional used (for provenance records)."""
+        return functional_description(self.correlation, self.relativistic_exchange)
 
     @property
     def total_energy(self) -> float:
@@ -315,6 +324,7 @@ def solve_atom(
     charge: float = 0.0,
     *,
     correlation: str = "vwn",
+    relativistic_exchange: bool | str | None = None,
     grid: RadialGrid | None = None,
     extra_potential: Callable[[NDArray[np.float64]], NDArray[np.float64]] | None = None,
     density_tol: float = 1e-9,
@@ -339,6 +349,10 @@ def solve_atom(
         Ionic charge (e); the configuration must hold Z − charge electrons.
     correlation : {"vwn", "pw92"}
         LDA correlation (VWN5 as in NIST SRD 141, or PW92).
+    relativistic_exchange : bool, {"auto", "on", "off"} or None
+        MacDonald–Vosko relativistic correction of the exchange (:mod:`valband.atom.xc`).
+        Default (None or "auto"): on for relativity="scalar", off for "none" (the
+        non-relativistic NIST SRD 141 tables have no such term).
     grid : RadialGrid, optional
         Default :func:`valband.atom.grid.make_grid` (r_min = 1e-6/Z, r_max = 60 bohr, h = 0.005).
     extra_potential : callable, optional
@@ -371,6 +385,7 @@ def solve_atom(
     charge = _check_charge(z, charge)
     cfg = _resolve_configuration(z, configuration, charge)
     alpha_squared(relativity)  # validates
+    rel_x = resolve_relativistic_exchange(relativistic_exchange, relativity)
     if correlation not in CORRELATIONS:
         raise SettingsError(
             f"unknown correlation {correlation!r}; accepted: {', '.join(CORRELATIONS)}"
@@ -421,7 +436,7 @@ def solve_atom(
     states: list = []
     for it in range(1, max_iterations + 1):
         v_h = hartree_potential(grid, rho_in)
-        _, v_xc = lda_xc(rho_in, correlation)
+        _, v_xc = lda_xc(rho_in, correlation, rel_x)
         v_in = v_nuc + v_h + v_xc + v_extra
         try:
             states = solve_orbitals(v_in)
@@ -442,7 +457,7 @@ def solve_atom(
         rho_good = rho_in
         rho_out = _density(states, occ, r)
         band = sum(f * st.energy for st, f in zip(states, occ, strict=True))
-        eps_out, vxc_out = lda_xc(rho_out, correlation)
+        eps_out, vxc_out = lda_xc(rho_out, correlation, rel_x)
         vh_out = hartree_potential(grid, rho_out)
         kinetic = band - float(dvol @ (rho_out * v_in))
         nuclear = float(dvol @ (rho_out * v_nuc))
@@ -496,4 +511,5 @@ def solve_atom(
         converged=True,
         density_residual=res_norm,
         energy_change=d_e,
+        relativistic_exchange=rel_x,
     )

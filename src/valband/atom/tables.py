@@ -38,7 +38,8 @@ File format (JSON, ``<El>-<relativity>.json``)
      "photon_energies_ev": [...],                    # ascending, n_energy
      "sigma_per_electron_mb": [[...], ...],          # n_subshell × n_energy, Mb per electron
      "beta": [[...], ...],                           # same shape, null below threshold
-     "provenance": {"valband_version": ..., "method": ..., "grid": ..., "created": ISO 8601}}
+     "provenance": {"valband_version": ..., "method": ..., "functional": ...,
+                    "relativistic_exchange": true, "grid": ..., "created": ISO 8601}}
 
 Reading checks the schema name and version, the shapes and the grid order, and names the
 file in any error.
@@ -47,7 +48,9 @@ Cache
 -----
 ``$VALBAND_CACHE_DIR/xsec``, else ``$XDG_CACHE_HOME/valband/xsec``, else
 ``~/.cache/valband/xsec``. Files are written atomically. A cache file that cannot be read (or
-that does not hold the element, relativity and default grid asked for) is reported with a
+that does not hold the element, relativity, exchange treatment (``relativistic_exchange``,
+on with relativity "scalar"; absent in tables made before it existed) and default grid
+asked for) is reported with a
 :class:`XsecCacheWarning` and rebuilt; it is never used.
 """
 
@@ -62,6 +65,7 @@ from pathlib import Path
 
 import numpy as np
 
+from valband.atom.xc import resolve_relativistic_exchange
 from valband.errors import InputError, SettingsError, ValbandWarning
 
 __all__ = [
@@ -308,7 +312,7 @@ def build_table(element, energies_ev=DEFAULT_GRID, relativity: str = "scalar",
         the table holds exactly ``energies_ev``.
     """
     from valband import __version__
-    from valband.atom.photoionization import valence_cross_sections
+    from valband.atom.photoionization import valence_atom, valence_cross_sections
     from valband.progress import Progress
 
     _check_relativity(relativity)
@@ -329,6 +333,7 @@ def build_table(element, energies_ev=DEFAULT_GRID, relativity: str = "scalar",
         bar.update()
         return xs
 
+    atom = valence_atom(symbol, relativity)
     first = compute(grid[0])
     for e in grid[1:]:
         compute(e)
@@ -385,6 +390,8 @@ def build_table(element, energies_ev=DEFAULT_GRID, relativity: str = "scalar",
             "method": "valband.atom.photoionization.valence_cross_sections: LDA atom "
                       f"(relativity={relativity}), Latter tail, dipole length form, "
                       "one-electron (Manson & Cooper 1968; Cooper & Zare 1968)",
+            "functional": atom.functional,
+            "relativistic_exchange": bool(atom.relativistic_exchange),
             "grid": grid_text,
             "default_grid": default,
             "refined": bool(refine),
@@ -500,6 +507,11 @@ def _usable(table: CrossSectionTable, symbol: str, relativity: str) -> str | Non
     """Why ``table`` cannot serve (symbol, relativity) on the default grid, or None."""
     if table.element != symbol or table.relativity != relativity:
         return f"holds {table.element} ({table.relativity}), not {symbol} ({relativity})"
+    want_x = resolve_relativistic_exchange(None, relativity)
+    if table.provenance.get("relativistic_exchange") is not want_x:
+        return ("was built " + ("without" if want_x else "with")
+                + " the relativistic exchange correction that this valband uses"
+                + (" (an older table)" if "relativistic_exchange" not in table.provenance else ""))
     lo, hi = table.energy_range_ev
     if not (math.isclose(lo, DEFAULT_GRID[0]) and math.isclose(hi, DEFAULT_GRID[-1])
             and table.provenance.get("default_grid") and table.provenance.get("refined")):

@@ -27,8 +27,9 @@ Top level::
 
 Options (in ``[defaults]`` and in any ``[[system]]``, which overrides them)::
 
-    params = "harrison-universal"    # a shipped parameter set, or a .toml path (relative
-                                     #   to the campaign file); hashed into the inputs
+    params = "valband-tc-2026"       # a shipped parameter set, or a .toml path (relative
+                                     #   to the campaign file); hashed into the inputs;
+                                     #   default: the program's default set
     method = "kmesh"                 # "kmesh" (default) | "kpm" | "cpa"
     strains = [0.0]                  # strains, fractions in [-0.2, 0.2]; 0 = unstrained
     strain_mode = "uniform"          # "uniform" (spec option strain=E) | "biaxial" (biaxial=E)
@@ -46,6 +47,9 @@ Options (in ``[defaults]`` and in any ``[[system]]``, which overrides them)::
     step = 0.02                      # eV
     symmetry = true                  # reduce the mesh by symmetry
     mesh_kind = "monkhorst-pack"     # or "gamma"
+    neutral = "auto"                 # charge self-consistency as the CLI's --neutral: "auto"
+                                     #   (site neutrality for alloys and surfaces) | "off" |
+                                     #   "site" | "element" | "layer"
 
     [defaults.kpm]                   # method "kpm" (valband.kpm.KPMSettings; Γ of the cell)
     resolution = 0.1                 # eV, Jackson kernel σ (sets the moments)

@@ -17,6 +17,7 @@ from pathlib import Path
 from typing import Any
 
 from valband.campaign.locate import KeyLines
+from valband.defaults import DEFAULT_PARAMETER_SET
 from valband.errors import InputError, ValbandError
 
 __all__ = ["CAMPAIGN_SCHEMA", "Campaign", "Candidate", "load_campaign", "parse_campaign",
@@ -29,7 +30,7 @@ METHODS = ("kmesh", "kpm", "cpa")
 _SHELLS = ("s", "p", "d")
 
 _BUILTIN_DEFAULTS: dict[str, Any] = {
-    "params": "harrison-universal",
+    "params": DEFAULT_PARAMETER_SET,
     "method": "kmesh",
     "strains": [0.0],
     "strain_mode": "uniform",
@@ -42,7 +43,7 @@ _BUILTIN_DEFAULTS: dict[str, Any] = {
     "kpm": {"resolution": 0.1, "accuracy": 0.05, "resolve": "element"},
     "cpa": {},
 }
-_KMESH_KEYS = ("mesh", "smearing", "width", "step", "symmetry", "mesh_kind")
+_KMESH_KEYS = ("mesh", "smearing", "width", "step", "symmetry", "mesh_kind", "neutral")
 _KPM_KEYS = ("resolution", "accuracy", "n_moments", "n_vectors", "trace", "resolve", "step",
              "margin", "repeat", "memory_mb", "lanczos_steps")
 _OPTION_KEYS = tuple(k for k in _BUILTIN_DEFAULTS)
@@ -238,6 +239,10 @@ def _check_kmesh(ctx, where, t) -> None:
         raise ctx.fail(where + ("symmetry",), "must be true or false")
     if "mesh_kind" in t:
         _string(ctx, where + ("mesh_kind",), t["mesh_kind"], ("monkhorst-pack", "gamma"))
+    if "neutral" in t:
+        from valband.workflows.methods import NEUTRAL_CHOICES
+
+        _string(ctx, where + ("neutral",), t["neutral"], NEUTRAL_CHOICES)
 
 
 def _check_kpm(ctx, where, t) -> None:

@@ -63,9 +63,11 @@ def _cpa_dos(structure, info: dict, params, settings: dict, composition=None):
     return cpa_dos(parent, comp, params, s, CPASettings(eta=eta))
 
 
-def _kmesh_dos(structure, params, settings: dict):
+def _kmesh_dos(structure, info: dict, params, settings: dict):
+    """k-mesh DOS with the CLI's charge self-consistency rule (``neutral``, default "auto")."""
     from valband.tb import build_model
-    from valband.workflows import DOSSettings, compute_dos
+    from valband.workflows import DOSSettings
+    from valband.workflows.methods import dos_by_method
 
     mesh = settings.get("mesh", 12)
     if isinstance(mesh, list):
@@ -75,7 +77,8 @@ def _kmesh_dos(structure, params, settings: dict):
                     width=float(settings.get("width", 0.1)),
                     step=float(settings.get("step", 0.02)),
                     symmetry=bool(settings.get("symmetry", True)))
-    return compute_dos(build_model(structure, params), s)
+    return dos_by_method(build_model(structure, params), info, s, params=params,
+                         neutral=settings.get("neutral", "auto"), soc=False)
 
 
 def _kpm_dos(structure, info: dict, params, settings: dict, seed: int):
@@ -184,8 +187,9 @@ def evaluate(inputs: dict) -> dict:
 
         params = _params(inputs["params"]["ref"])
         structure, info = load_structure_with_info(inputs["structure"])
+        scheme = None
         if method == "kmesh":
-            dos = _kmesh_dos(structure, params, inputs["settings"])
+            dos, scheme = _kmesh_dos(structure, info, params, inputs["settings"])
         elif method == "cpa":
             dos = _cpa_dos(structure, info, params, inputs["settings"],
                            inputs.get("composition"))
@@ -200,6 +204,8 @@ def evaluate(inputs: dict) -> dict:
             "n_sites": dos.n_sites, "formula": structure.formula,
             "structure_info": {k: info.get(k) for k in ("kind", "seed", "counts", "formula")},
             "dos": details,
+            "neutrality": None if scheme is None else {
+                k: v for k, v in scheme["neutrality"].items()},
             "spectra": _spectra(dos, inputs["spectra"], inputs["spectrum_fwhm"],
                                 inputs["temperature"]),
         }

@@ -115,7 +115,7 @@ def run(args) -> int:
     measured = read_spectrum(args.measured, axis=args.axis, photon_energy=hv,
                              work_function=args.work_function, block=block)
     model, info = load_model_with_info(args)
-    pre, method = method_dos(args, model, info)
+    pre, method = method_dos(args, model, info, context="spectra")
     weights, record = depth_weights_of(args, model, info,
                                        hv if hv is not None else measured.photon_energy)
     free = args.free
@@ -133,7 +133,7 @@ def run(args) -> int:
         band_window=args.band_window,
         calibrate_window=tuple(args.edge_window) if args.calibrate_edge else None,
         fmt=args.format, progress=not (args.quiet or args.json), layer_weights=weights,
-        depth_record=record, dos=pre, extra={"method": method} if method else None)
+        depth_record=record, dos=pre, extra={"method": method})
     if args.json:
         print_json(summary)
     elif not args.quiet:

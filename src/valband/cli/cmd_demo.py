@@ -4,13 +4,15 @@ from __future__ import annotations
 
 import sys
 
+from valband.defaults import DEFAULT_PARAMETER_SET
+
 
 def add_arguments(p) -> None:
     """Options of ``valband demo``."""
     p.add_argument("--out", default="valband-demo", metavar="DIR",
                    help="folder for all results (default valband-demo)")
-    p.add_argument("--params", default="valband-tc-2026", metavar="SET",
-                   help="parameter set name or .toml path (default valband-tc-2026)")
+    p.add_argument("--params", default=DEFAULT_PARAMETER_SET, metavar="SET",
+                   help=f"parameter set name or .toml path (default {DEFAULT_PARAMETER_SET})")
     p.add_argument("--mesh", default="20", help="k-mesh per candidate (default 20)")
     p.add_argument("--format", default="png", choices=["png", "svg"], help="plot format")
     p.add_argument("--json", action="store_true", help="print the summary as JSON")

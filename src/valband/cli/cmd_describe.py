@@ -30,16 +30,12 @@ def run(args) -> int:
 
     model, info = load_model_with_info(args)
     pre, record = method_dos(args, model, info)
-    if pre is None and info.get("kind") in ("slab", "overlayer"):
-        from valband.workflows import compute_dos
-
-        pre = compute_dos(model, dos_settings(args), progress=not args.quiet)
-    layers = layer_block(pre, info, args.shell, window_of(args)) if pre is not None else None
-    extra = ({"method": record} if record else {}) | (
+    layers = layer_block(pre, info, args.shell, window_of(args))
+    extra = {"method": record} | (
         {"layers": layers.to_dict()} if layers else {})
     summary, dos, table = dos_job(model, dos_settings(args), args.out, window_of(args), args.shell,
                                   args.format, progress=not args.quiet, command="describe",
-                                  dos=pre, extra=extra or None)
+                                  dos=pre, extra=extra)
     if table is None:
         raise SettingsError(f"{model.structure.formula} has no {args.shell} shell in this parameter set")
     if args.json:

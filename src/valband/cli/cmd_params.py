@@ -44,6 +44,9 @@ def add_arguments(p) -> None:
                    "each pair (default 32), or MIN:MAX:N in Å for every pair")
     g.add_argument("--relativity", default="scalar", choices=["scalar", "none"],
                    help="atoms (default scalar-relativistic)")
+    g.add_argument("--relativistic-exchange", default="auto", choices=["auto", "on", "off"],
+                   help="MacDonald-Vosko relativistic correction of the atoms' LDA exchange "
+                   "(default auto: on with scalar relativity)")
     g.add_argument("--jobs", type=int, default=1, help="worker processes for the pair tables")
     g.add_argument("--quiet", action="store_true", help="no progress messages")
 
@@ -168,6 +171,7 @@ def _generate(args) -> int:
     rho = _pairs_of("--r0-density", args.r0_density, shells=False)
     settings = GenerationSettings(
         relativity=args.relativity,
+        relativistic_exchange=args.relativistic_exchange,
         r0={el: v["*"] for el, v in r0.items() if "*" in v},
         shell_r0={el: {k: x for k, x in v.items() if k != "*"} for el, v in r0.items()
                   if set(v) - {"*"}},
@@ -187,7 +191,8 @@ def _generate(args) -> int:
             print(f"  {msg}", file=sys.stderr, flush=True)
 
     words = ["valband", "params", "generate", *els]
-    for opt in ("out", "name", "description", "distances", "relativity", "rule"):
+    for opt in ("out", "name", "description", "distances", "relativity",
+                "relativistic-exchange", "rule"):
         value = getattr(args, opt.replace("-", "_"))
         if value is not None:
             words += [f"--{opt}", str(value)]
@@ -293,7 +298,8 @@ def _show(args) -> int:
         gen = prov.get("generation")
         if gen:
             print(f"  confinement: power {gen['power']}, configuration rule "
-                  f"{gen['configuration']!r}, relativity {gen['relativity']}")
+                  f"{gen['configuration']!r}, relativity {gen['relativity']}, relativistic "
+                  f"exchange {gen.get('relativistic_exchange', 'off')}")
         q = prov.get("quadrature")
         if q:
             print(f"  quadrature: {q.get('n_radial')} radial x {q.get('n_angular')} angular "

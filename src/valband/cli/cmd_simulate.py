@@ -75,14 +75,14 @@ def run(args) -> int:
     from valband.spectra.io import simulate_job
 
     model, info = load_model_with_info(args)
-    pre, method = method_dos(args, model, info)
+    pre, method = method_dos(args, model, info, context="spectra")
     weights, record = depth_weights_of(args, model, info, args.photon_energy)
     summary, spec, dos = simulate_job(
         model, dos_settings(args), args.out, args.photon_energy, args.temperature,
         args.resolution, tuple(args.lifetime), (args.angle, args.polarization), args.format,
         progress=not (args.quiet or args.json), inelastic=_inelastic(args.inelastic),
         layer_weights=weights, depth_record=record, dos=pre,
-        extra={"method": method} if method else None)
+        extra={"method": method})
     if args.json:
         print_json(summary)
     elif not args.quiet:

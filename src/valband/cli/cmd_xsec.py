@@ -64,7 +64,7 @@ def run(args) -> int:
     """Print the table (or JSON) of the element's valence subshells; optionally plot."""
     from valband import __version__
     from valband.atom.configurations import resolve_element
-    from valband.atom.photoionization import valence_cross_sections
+    from valband.atom.photoionization import valence_atom, valence_cross_sections
     from valband.atom.tables import interpolate, photon_energy_of, table_for
     from valband.output import to_json
 
@@ -74,10 +74,12 @@ def run(args) -> int:
     if args.direct:
         rows = valence_cross_sections(symbol, energy, args.relativity)
         source = "direct calculation"
+        functional = valence_atom(symbol, args.relativity).functional
     else:
         table, where = table_for(symbol, args.relativity)
         rows = interpolate(table, energy)
         source = f"table ({where})"
+        functional = table.provenance.get("functional", "not recorded")
     if args.plot:
         if table is None:
             table, where = table_for(symbol, args.relativity)
@@ -90,6 +92,7 @@ def run(args) -> int:
             "element": symbol,
             "photon_energy_ev": energy,
             "relativity": args.relativity,
+            "functional": functional,
             "source": source,
             "units": {"energy": "eV", "sigma": "Mb (1e-22 m^2)"},
             "subshells": [
@@ -106,6 +109,7 @@ def run(args) -> int:
         return 0
     print(f"{symbol}: valence photoionization at {energy:g} eV ({args.relativity} relativity; "
           f"{source})")
+    print(f"atom: {functional}")
     head = ("subshell", "occupation", "BE (eV)", "σ subshell (Mb)", "σ per e (Mb)", "β")
     body = [(r.subshell, f"{r.occupation:g}", f"{r.binding_energy_ev:.3f}", f"{r.sigma_mb:.4e}",
              f"{r.sigma_per_electron_mb:.4e}", "—" if r.beta != r.beta else f"{r.beta:.3f}")

@@ -9,10 +9,10 @@ __all__ = [
     "add_model_arguments", "add_dos_arguments", "add_output_arguments",
     "load_model", "load_model_with_info", "add_depth_arguments", "depth_weights_of",
     "add_method_arguments", "method_dos", "layer_block", "print_layer_table",
-    "dos_settings", "print_json", "window_of",
+    "dos_settings", "print_json", "window_of", "print_method_record",
 ]
 
-DEFAULT_PARAMS = "valband-tc-2026"
+from valband.defaults import DEFAULT_PARAMETER_SET as DEFAULT_PARAMS
 
 
 def add_model_arguments(p: argparse.ArgumentParser) -> None:
@@ -56,12 +56,17 @@ def add_method_arguments(p: argparse.ArgumentParser) -> None:
                    help="for a 'random …' or 'sqs …' spec: the decorated supercell (default), "
                    "the virtual crystal (vca) or the coherent potential approximation (cpa; "
                    "Lorentzian η = --width)")
-    g.add_argument("--neutral", default=None, choices=["site", "element", "layer"],
-                   help="self-consistent onsite shifts keeping each site, element or layer "
-                   "(slabs) charge neutral")
-    g.add_argument("--soc", action="store_true",
+    g.add_argument("--neutral", default="auto", choices=["auto", "off", "site", "element", "layer"],
+                   help="charge self-consistency: onsite shifts keeping each site, element or "
+                   "layer (slabs) charge neutral; auto (default): per site for alloys, "
+                   "compounds, slabs and overlayers, off for a pure cell whose sites are all "
+                   "equivalent; off: the plain model")
+    g.add_argument("--soc", dest="soc", action="store_true", default=None,
                    help="spin–orbit coupling λL·S on p and d shells (constants from the "
-                   "parameter set, else from valband's atom engine)")
+                   "parameter set, else from valband's atom engine); default: on in simulate "
+                   "and compare for structures with an element heavier than Kr, else off")
+    g.add_argument("--no-soc", dest="soc", action="store_false",
+                   help="no spin–orbit coupling, also where it would be on by default")
     g.add_argument("--magnetic", action="store_true",
                    help="collinear Stoner magnetism, self-consistent with the Fermi level")
     g.add_argument("--stoner", default=None, metavar="EL=I,…",
@@ -91,16 +96,40 @@ def _pairs(text: str | None, what: str) -> dict | None:
     return out
 
 
-def method_dos(args, model, info):
-    """(DOS, record) for the method options, or (None, None) for the plain k-mesh DOS."""
+def method_dos(args, model, info, context: str = "dos"):
+    """(DOS, record) by the method options (:func:`valband.workflows.methods.dos_by_method`).
+
+    ``context="spectra"`` (simulate, compare) turns automatic spin–orbit coupling on for heavy
+    elements. The choices and their reasons are printed on stderr unless ``--quiet``/``--json``.
+    """
     from valband.params import load_parameter_set
     from valband.workflows.methods import dos_by_method
 
-    return dos_by_method(
+    quiet = args.quiet or getattr(args, "json", False)
+    dos, record = dos_by_method(
         model, info, dos_settings(args), params=load_parameter_set(args.params),
         alloy=args.alloy_method, neutral=args.neutral, soc=args.soc, magnetic=args.magnetic,
         stoner=_pairs(args.stoner, "--stoner"), initial_moment=args.initial_moment,
-        order=args.order, progress=not (args.quiet or getattr(args, "json", False)))
+        order=args.order, context=context, progress=not quiet)
+    if not quiet:
+        print_method_record(record)
+    return dos, record
+
+
+def print_method_record(record: dict, out=None) -> None:
+    """One line each for charge self-consistency and spin–orbit coupling (what and why)."""
+    out = out or sys.stderr
+    neu = record.get("neutrality")
+    if neu is not None:
+        if neu["mode"] is None:
+            print(f"charge self-consistency: off — {neu['reason']}", file=out)
+        else:
+            print(f"charge self-consistency: local neutrality per {neu['mode']} — {neu['reason']}; "
+                  f"converged in {neu['iterations']} iterations (max residual "
+                  f"{neu['max_residual_per_site']:.1e} e/site)", file=out)
+    so = record.get("spin_orbit")
+    if so is not None:
+        print(f"spin–orbit coupling: {'on' if so['on'] else 'off'} — {so['reason']}", file=out)
 
 
 def layer_block(dos, info, shell: str, window=None):

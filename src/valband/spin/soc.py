@@ -9,9 +9,11 @@ Order of precedence for each (element, shell):
    says so in the provenance);
 3. the free, scalar-relativistic LDA atom of :mod:`valband.atom` (Koelling & Harmon, J. Phys.
    C 10, 3107 (1977)) through :func:`valband.atom.spin_orbit_constant_ev`, in the ground
-   configuration with the valence p level added empty when it is not occupied. Using the
+   configuration with the valence p level added empty when it is not occupied, and the
+   MacDonald–Vosko relativistic exchange (the default of a scalar-relativistic atom). Using the
    free-atom ξ in the solid is common practice (it changes by a few per cent on
-   compression); (5/2)ξ_d agrees with the NIST SRD 141 relativistic d splittings within 1 %.
+   compression); (5/2)ξ_d agrees with the NIST SRD 141 relativistic d splittings within 1.5 %
+   (Cu −0.15 %, Ag −0.41 %, Au −1.33 %).
 """
 
 from __future__ import annotations
@@ -87,8 +89,10 @@ def atom_spin_orbit(element: str) -> dict[str, tuple[float, str]]:
     for sh, (n, _, occ) in shells.items():
         xi = float(spin_orbit_constant_ev(atom, f"{n}{sh}"))
         note = "" if occ else f", {n}{sh} added empty"
-        out[sh] = (xi, f"valband.atom: free scalar-relativistic LDA atom (…{text}{note}), "
-                       f"first-order ξ_{n}{sh} (Koelling & Harmon 1977)")
+        rel_x = (", MacDonald-Vosko relativistic exchange" if atom.relativistic_exchange
+                 else "")
+        out[sh] = (xi, f"valband.atom: free scalar-relativistic LDA atom (…{text}{note}"
+                       f"{rel_x}), first-order ξ_{n}{sh} (Koelling & Harmon 1977)")
     return out
 
 

@@ -61,10 +61,14 @@ def parse_build_spec(text: str) -> BuildSpec:
     a = c = None
     for tok in tokens[2:]:
         key, _, val = tok.partition("=")
+        if _ and key != "c":
+            raise StructureError(f"build spec {text!r}: unknown option {key!r}; {accepted}")
+        if (c if _ else a) is not None:
+            raise StructureError(
+                f"build spec {text!r}: {'c' if _ else 'the lattice constant a'} is given twice "
+                f"({tok!r}); give a once and, for hcp, c as c=C; {accepted}")
         try:
             if _:
-                if key != "c":
-                    raise StructureError(f"build spec {text!r}: unknown option {key!r}; {accepted}")
                 c = float(val)
             else:
                 a = float(tok)
@@ -72,6 +76,9 @@ def parse_build_spec(text: str) -> BuildSpec:
             raise StructureError(
                 f"build spec {text!r}: {tok!r} is not a number (lattice constant in Å)"
             ) from None
+    if c is not None and lattice != "hcp":
+        raise StructureError(f"build spec {text!r}: c={c:g} applies to hcp only; {lattice} is "
+                             "cubic (one lattice constant a)")
     for name, v in (("a", a), ("c", c)):
         if v is not None and not (v > 0 and v < 100):
             raise StructureError(f"build spec {text!r}: lattice constant {name}={v} Å is not in (0, 100)")

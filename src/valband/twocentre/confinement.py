@@ -153,7 +153,7 @@ from valband.atom.configurations import (
 from valband.atom.grid import RadialGrid, hartree_potential, make_grid
 from valband.atom.radial import RELATIVITY
 from valband.atom.scf import BOHR_ANGSTROM, HARTREE_EV, AtomResult, solve_atom
-from valband.atom.xc import lda_xc
+from valband.atom.xc import functional_description, lda_xc, resolve_relativistic_exchange
 from valband.errors import CalculationError, InputError, SettingsError
 
 from .integrals import RadialOrbital, TwoCentreSite
@@ -206,7 +206,6 @@ _ONSITE_TEXT = {
     "basis": "energy <phi|T + v_free|phi> of each confined basis orbital in the free atom's "
     "Kohn-Sham potential (same configuration)",
 }
-_FUNCTIONAL = "LDA: Slater exchange + VWN5 correlation (Vosko, Wilk, Nusair 1980)"
 _PERIOD_ENDS = (2, 10, 18, 36, 54, 86, 118)
 _D_BLOCK = set(range(21, 31)) | set(range(39, 49)) | {57} | set(range(71, 81)) | {89}
 
@@ -498,6 +497,7 @@ def confined_atom(
     onsite: str = DEFAULT_ONSITE,
     r0_factors: Mapping[str, float] | None = None,
     density_factor: float | None = None,
+    relativistic_exchange: bool | str | None = None,
 ) -> ConfinedAtom:
     """Confined valence orbitals, density, neutral-atom potential and onsite energies.
 
@@ -532,6 +532,9 @@ def confined_atom(
     density_factor : float, optional
         Density radius factor when ``r0_density`` is not given (default
         :data:`DENSITY_R0_FACTOR`).
+    relativistic_exchange : bool, {"auto", "on", "off"} or None
+        MacDonald–Vosko correction of the exchange in all three atoms and in V_na
+        (:func:`valband.atom.xc.resolve_relativistic_exchange`; default: on when scalar).
 
     Returns
     -------
@@ -550,6 +553,7 @@ def confined_atom(
     z, symbol = _resolve(element)
     if relativity not in RELATIVITY:
         raise SettingsError(f"relativity {relativity!r}; accepted: {', '.join(RELATIVITY)}")
+    rel_x = resolve_relativistic_exchange(relativistic_exchange, relativity)
     p = _check_r0(power, "power") if not isinstance(power, bool) else math.nan
     if not (0 < p <= 20):
         raise SettingsError(f"power = {power!r}; accepted: an exponent 0 < power <= 20")
@@ -593,13 +597,14 @@ def confined_atom(
     def confined(radius: float) -> AtomResult:
         if radius not in runs:
             runs[radius] = solve_atom(
-                z, cfg, relativity, grid=g,
+                z, cfg, relativity, grid=g, relativistic_exchange=rel_x,
                 extra_potential=lambda r, a=radius: (r / a) ** p,
             )  # fmt: skip
         return runs[radius]
 
     try:
-        free = solve_atom(z, cfg, relativity, grid=make_grid(z, r_max=FREE_ATOM_R_MAX))
+        free = solve_atom(z, cfg, relativity, grid=make_grid(z, r_max=FREE_ATOM_R_MAX),
+                          relativistic_exchange=rel_x)
     except CalculationError as exc:
         empty = [f"{n}{L_LETTERS[l]}" for n, l, f in cfg if f == 0]  # noqa: E741
         raise CalculationError(
@@ -610,7 +615,7 @@ def confined_atom(
         ) from exc
     dens_atom = confined(r0_rho)
     rho = np.asarray(dens_atom.density)
-    _, vxc = lda_xc(rho, dens_atom.correlation)
+    _, vxc = lda_xc(rho, dens_atom.correlation, rel_x)
     v_na = -z / g.r + hartree_potential(g, rho) + vxc
 
     v_free = LogGridFunction(np.asarray(free.r), np.asarray(free.potential), power=-1)(g.r)
@@ -641,7 +646,8 @@ def confined_atom(
         potentials[sh] = readonly(atom.potential)
     settings = {
         "method": "self-consistent confined atom (radial Kohn-Sham, valband.atom.solve_atom)",
-        "functional": _FUNCTIONAL,
+        "functional": functional_description(dens_atom.correlation, rel_x),
+        "relativistic_exchange": rel_x,
         "relativity": relativity,
         "configuration": format_configuration(cfg),
         "confinement": {

@@ -199,8 +199,10 @@ def _element_entry(atom: ConfinedAtom) -> dict[str, Any]:
         if atom.settings.get("onsite_rule") == "basis"
         else "free-atom eigenvalue of the {label} level"
     )
+    rel_x = (" with MacDonald-Vosko relativistic exchange"
+             if atom.settings.get("relativistic_exchange") else "")
     src = (
-        f"{what}, {atom.relativity}-relativistic LDA (VWN), configuration "
+        f"{what}, {atom.relativity}-relativistic LDA (VWN){rel_x}, configuration "
         f"{atom.configuration}; valband.atom.solve_atom"
     )
     return {
@@ -281,7 +283,8 @@ def parameter_set_dict(
             elements[el] = entry
             provenance[el] = atom.settings["confinement"] | {
                 "relativity": atom.relativity, "configuration": atom.configuration,
-                "onsite_rule": atom.settings.get("onsite_rule", "eigenvalue")}
+                "onsite_rule": atom.settings.get("onsite_rule", "eigenvalue"),
+                "relativistic_exchange": bool(atom.settings.get("relativistic_exchange"))}
         key = f"{t.first}-{t.second}"
         if key in pairs or f"{t.second}-{t.first}" in pairs:
             raise SettingsError(f"pair {key} given twice; accepted: one table per element pair")
@@ -324,7 +327,9 @@ def parameter_set_dict(
     record = {
         "method": "two-centre integrals (Slater-Koster), potential superposition V_A + V_B of "
         "neutral confined-density atoms; H symmetrised over both atoms' eigen-equations",
-        "functional": "LDA, Slater exchange + VWN5 correlation",
+        "functional": "; ".join(sorted({str(a.settings.get("functional", "LDA, Slater exchange + "
+                                                           "VWN5 correlation"))
+                                        for t in tables for a in t.atoms.values()})),
         "confinement": provenance,
         "quadrature": quad,
         "onsite": sorted({a.settings["onsite"] for t in tables for a in t.atoms.values()}),

@@ -1,20 +1,26 @@
 """One entry for the DOS of a structure by any method: k-mesh, VCA, CPA, charge neutrality, spin.
 
-:func:`dos_by_method` is what the command-line jobs call when an option asks for more than the
-plain k-mesh DOS of the structure as given:
+:func:`dos_by_method` is what the command-line jobs and campaigns call. It always returns the
+DOS and a record for ``summary.json`` that states what was done and why:
 
 ``alloy="vca"`` / ``"cpa"``
     the structure must come from a ``random`` or ``sqs`` spec; its composition and parent
     lattice are used instead of the decorated supercell (:mod:`valband.alloy.vca`,
     :mod:`valband.alloy.cpa`; CPA needs a Lorentzian broadening η — the DOS width is used).
-``neutral="site"|"element"|"layer"``
-    self-consistent onsite shifts for local charge neutrality (:mod:`valband.alloy.neutrality`;
-    "layer" needs a slab or overlayer spec).
-``soc`` / ``magnetic``
-    spin–orbit coupling and Stoner magnetism (:mod:`valband.spin`).
+``neutral="auto"`` (default), ``"off"``, ``"site"``, ``"element"``, ``"layer"``
+    charge self-consistency by local charge neutrality (:mod:`valband.alloy.neutrality`). With
+    ``"auto"`` it is on, per site, for every structure that is not a single element with all
+    sites symmetry-equivalent (alloys, compounds, slabs, overlayers, defective or distorted
+    cells) and off for such a pure cell, whose sites are neutral by symmetry
+    (:func:`neutrality_choice`). "layer" needs a slab or overlayer spec.
+``soc=None`` (automatic), ``True``, ``False``; ``magnetic``
+    spin–orbit coupling and Stoner magnetism (:mod:`valband.spin`). Automatic spin–orbit is on
+    for spectra (``context="spectra"``) of structures with an element heavier than Kr and off
+    otherwise (:func:`spin_orbit_choice`).
 
-It returns the DOS and a record for ``summary.json`` (``None`` when nothing special was asked,
-so the caller computes the plain DOS as before).
+Neutrality combined with spin: the shifts are solved on the scalar-relativistic,
+non-magnetic model and the spin run is made on the shifted model (spin–orbit coupling moves
+site charges little, since Tr L·S = 0 on every shell; the record says so).
 """
 
 from __future__ import annotations
@@ -23,10 +29,20 @@ import dataclasses
 
 from valband.errors import SettingsError
 
-__all__ = ["dos_by_method", "ALLOY_METHODS", "NEUTRAL_MODES", "alloy_parent"]
+__all__ = ["dos_by_method", "neutrality_choice", "spin_orbit_choice", "ALLOY_METHODS",
+           "NEUTRAL_MODES", "NEUTRAL_CHOICES", "SOC_HEAVY_Z", "alloy_parent"]
 
 ALLOY_METHODS = ("supercell", "vca", "cpa")
 NEUTRAL_MODES = ("site", "element", "layer")
+#: What ``neutral`` accepts: the modes, "auto" (the default rule) and "off".
+NEUTRAL_CHOICES = ("auto", "off") + NEUTRAL_MODES
+#: k-divisions of the neutrality loop relative to the DOS mesh (NeutralitySettings.mesh_scale).
+DEFAULT_LOOP_MESH_SCALE = 0.5
+#: Largest residual (electrons per site) of the coarse loop's shifts on the DOS mesh before the
+#: loop is run again on the DOS mesh itself (≈ 10–30 meV of shift at metallic local DOS).
+FINAL_MESH_TOLERANCE = 1e-2
+#: Automatic spin–orbit in spectra for structures holding an element with Z above this (Kr).
+SOC_HEAVY_Z = 36
 
 
 def alloy_parent(info: dict):
@@ -48,27 +64,150 @@ def alloy_parent(info: dict):
     return Structure.from_atoms(atoms, source=info["parent"]), comp
 
 
-def dos_by_method(model, info: dict, settings, *, params, alloy: str = "supercell",
-                  neutral: str | None = None, soc: bool = False, magnetic: bool = False,
-                  stoner=None, initial_moment=None, order=None, progress: bool = False):
-    """DOS by the requested method and a summary record, or ``(None, None)`` for the plain one.
+def neutrality_choice(structure, requested: str = "auto", *, alloy: str = "supercell",
+                      charged: bool = False) -> tuple[str | None, str]:
+    """The neutrality mode to run (or None) and the reason, for ``summary.json`` and stdout.
 
-    Combinations: one alloy method (VCA, CPA) *or* neutrality *or* spin; VCA may be combined
-    with nothing else, CPA with nothing else; spin with neither (stated errors otherwise).
+    Parameters
+    ----------
+    structure : valband.structure.Structure
+    requested : "auto", "off", "site", "element" or "layer"
+    alloy : the alloy method; VCA and CPA have one effective site and run without neutrality
+    charged : True when the electron count was set by hand (``--electrons``): a charged cell
+        cannot be neutral site by site, so "auto" turns neutrality off
+    """
+    if requested not in NEUTRAL_CHOICES:
+        raise SettingsError(f"neutrality {requested!r}: accepted {', '.join(NEUTRAL_CHOICES)}")
+    if requested == "off":
+        return None, "switched off (--neutral off)"
+    if requested != "auto":
+        return requested, f"requested (--neutral {requested})"
+    if alloy != "supercell":
+        return None, f"{alloy.upper()} has one effective site (no local neutrality)"
+    if charged:
+        return None, "the electron count was set by hand (a charged cell is not neutral by site)"
+    elements = sorted(set(structure.symbols))
+    if len(elements) > 1:
+        return "site", f"{len(elements)} elements ({', '.join(elements)})"
+    from valband.kspace.symmetry import equivalent_sites
+
+    n_classes = len(set(equivalent_sites(structure).tolist()))
+    if n_classes == 1:
+        return None, "one element, all sites symmetry-equivalent (neutral by symmetry)"
+    return "site", f"one element on {n_classes} inequivalent kinds of site (surface or defect)"
+
+
+def spin_orbit_choice(structure, requested: bool | None = None,
+                      context: str = "dos") -> tuple[bool, str]:
+    """Whether to add spin–orbit coupling, and the reason.
+
+    ``requested=None`` is automatic: on for spectra (``context="spectra"``) of structures with an
+    element heavier than Kr (4d and 5d metals and beyond, whose d doublets photoemission
+    resolves), off elsewhere (the first moment of a shell's DOS, the d-band centre, does not
+    change under λL·S, since Tr L·S = 0, and the doubled basis costs 4–8×).
+    """
+    from ase.data import atomic_numbers
+
+    if requested is not None:
+        return bool(requested), "requested (--soc)" if requested else "switched off (--no-soc)"
+    heavy = sorted({s for s in structure.symbols if atomic_numbers[s] > SOC_HEAVY_Z})
+    if context != "spectra":
+        return False, "off by default outside spectra (d-band centres are unchanged by λL·S)"
+    if heavy:
+        return True, f"automatic for spectra: {', '.join(heavy)} heavier than Kr"
+    return False, "automatic for spectra: no element heavier than Kr"
+
+
+def dos_by_method(model, info: dict, settings, *, params, alloy: str = "supercell",
+                  neutral: str = "auto", soc: bool | None = False, magnetic: bool = False,
+                  stoner=None, initial_moment=None, order=None, context: str = "dos",
+                  neutrality=None, progress: bool = False):
+    """DOS by the requested method and the record of what was done: ``(DOSResult, dict)``.
+
+    Combinations: one alloy method (VCA, CPA) with nothing else; neutrality with spin–orbit
+    and/or magnetism (module docstring); stated errors otherwise. ``neutrality`` takes
+    :class:`valband.alloy.NeutralitySettings`. A neutrality loop that does not converge raises
+    :class:`valband.errors.CalculationError` with its iterations and residual.
     """
     if alloy not in ALLOY_METHODS:
         raise SettingsError(f"alloy method {alloy!r}: accepted {', '.join(ALLOY_METHODS)}")
-    if neutral is not None and neutral not in NEUTRAL_MODES:
-        raise SettingsError(f"neutrality mode {neutral!r}: accepted {', '.join(NEUTRAL_MODES)}")
-    spin = bool(soc or magnetic)
+    charged = getattr(settings, "n_electrons", None) is not None
+    mode, why = neutrality_choice(model.structure, neutral, alloy=alloy, charged=charged)
+    use_soc, soc_why = spin_orbit_choice(model.structure, soc, context)
+    spin = bool(use_soc or magnetic)
     chosen = [n for n, on in (("--alloy-method " + alloy, alloy != "supercell"),
-                              ("--neutral", neutral is not None), ("--soc/--magnetic", spin)) if on]
-    if len(chosen) > 1:
-        raise SettingsError(f"{' and '.join(chosen)} cannot be combined (yet); choose one")
+                              ("--neutral", mode is not None), ("--soc/--magnetic", spin)) if on]
+    if alloy != "supercell" and len(chosen) > 1:
+        raise SettingsError(f"{' and '.join(chosen)} cannot be combined; VCA and CPA run alone")
     if not spin and (stoner or initial_moment is not None or order):
         raise SettingsError("--stoner, --initial-moment and --order need --magnetic")
-    if not chosen:
-        return None, None
+    if alloy != "supercell":
+        return _alloy_dos(model, info, settings, params, alloy, progress)
+
+    final = None
+    record: dict = {"neutrality": {"mode": mode, "requested": neutral, "reason": why},
+                    "spin_orbit": {"on": use_soc, "reason": soc_why}}
+    if mode is not None:
+        from valband.alloy import (
+            NeutralitySettings,
+            shifted_model,
+            site_charge_residuals,
+            solve_neutrality,
+        )
+        from valband.kspace import parse_mesh
+
+        if mode == "layer" and info.get("kind") not in ("slab", "overlayer"):
+            raise SettingsError("--neutral layer needs a slab or overlayer spec (e.g. 'slab Pt "
+                                "fcc111 layers=5'); use --neutral site or element for bulk cells")
+        groups = info if mode == "layer" else None
+        loop = neutrality or NeutralitySettings(mesh_scale=DEFAULT_LOOP_MESH_SCALE)
+        report = solve_neutrality(model, settings, mode, groups, params=params, neutrality=loop)
+        shifted = shifted_model(model, report.site_shifts)
+        final = None
+        if loop.loop_mesh(settings.mesh) != parse_mesh(settings.mesh):
+            from valband.workflows import compute_dos
+
+            final = compute_dos(shifted, settings, progress=progress)
+            worst = max(abs(v) for v in site_charge_residuals(final, report).values())
+            if worst > FINAL_MESH_TOLERANCE:   # not enough: go on from there on the DOS mesh
+                coarse = report.iterations
+                loop = dataclasses.replace(loop, mesh_scale=1.0)
+                report = solve_neutrality(model, settings, mode, groups, params=params,
+                                          neutrality=loop, initial_shifts=report.site_shifts)
+                shifted, final = shifted_model(model, report.site_shifts), None
+                record["neutrality"] |= {"coarse_loop_iterations": coarse,
+                                         "coarse_residual_on_dos_mesh": worst}
+                worst = report.max_residual
+            record["neutrality"]["final_mesh_max_residual_per_site"] = worst
+        record["neutrality"] |= {"converged": True, "iterations": report.iterations,
+                                 "max_residual_per_site": report.max_residual,
+                                 "loop_mesh": list(loop.loop_mesh(settings.mesh))}
+        record["report"] = report.to_dict()
+        model = shifted
+    names = (["local charge neutrality per " + mode] if mode else []) + (
+        ["spin-orbit"] if use_soc else []) + (["Stoner magnetism"] if magnetic else [])
+    record["method"] = " + ".join(names) if names else "k-mesh"
+    if not spin:
+        from valband.workflows import compute_dos
+
+        dos = final if final is not None else compute_dos(model, settings, progress=progress)
+        if mode is not None:
+            dos = dataclasses.replace(dos, settings={**dos.settings,
+                                                     "neutrality": record["report"]})
+        return dos, record
+    from valband.spin import spin_dos
+
+    res = spin_dos(model, settings, soc=use_soc, magnetic=magnetic, params=params, stoner=stoner,
+                   initial_moment=initial_moment, order=order, progress=progress)
+    record["spin"] = res.summary()
+    if mode is not None:
+        record["neutrality"]["note"] = ("shifts solved on the scalar-relativistic, non-magnetic "
+                                        "model; the spin run uses the shifted model")
+    return res.total, record
+
+
+def _alloy_dos(model, info, settings, params, alloy, progress):
+    """VCA or CPA DOS of a random/SQS spec's parent lattice and composition."""
     if alloy == "vca":
         from valband.alloy import vca_model
         from valband.workflows import compute_dos
@@ -77,33 +216,15 @@ def dos_by_method(model, info: dict, settings, *, params, alloy: str = "supercel
         dos = compute_dos(vca_model(parent, comp, params), settings, progress=progress)
         return dos, {"method": "virtual crystal approximation", "composition": comp,
                      "parent": info["parent"]}
-    if alloy == "cpa":
-        from valband.alloy import CPASettings, cpa_solve
+    from valband.alloy import CPASettings, cpa_solve
 
-        parent, comp = alloy_parent(info)
-        lor = dataclasses.replace(settings, method="lorentzian")
-        res = cpa_solve(parent, comp, params, lor, CPASettings(eta=settings.width))
-        rec = {"method": "coherent potential approximation", "composition": comp,
-               "parent": info["parent"], "eta_eV": settings.width,
-               "report": res.dos.settings.get("cpa")}
-        if settings.method != "lorentzian":
-            rec["note"] = (f"CPA evaluates the Green function at E + iη: the DOS is Lorentzian "
-                           f"with η = {settings.width} eV (the --method was {settings.method})")
-        return res.dos, rec
-    if neutral is not None:
-        from valband.alloy import neutral_dos
-
-        if neutral == "layer" and info.get("kind") not in ("slab", "overlayer"):
-            raise SettingsError("--neutral layer needs a slab or overlayer spec (e.g. 'slab Pt "
-                                "fcc111 layers=5'); use --neutral site or element for bulk cells")
-        groups = info if neutral == "layer" else None
-        dos, report = neutral_dos(model, settings, neutral, groups, params=params,
-                                  progress=progress)
-        return dos, {"method": f"local charge neutrality per {neutral}",
-                     "report": report.to_dict()}
-    from valband.spin import spin_dos
-
-    res = spin_dos(model, settings, soc=soc, magnetic=magnetic, params=params, stoner=stoner,
-                   initial_moment=initial_moment, order=order, progress=progress)
-    return res.total, {"method": "spin" + (" + spin-orbit" if soc else "")
-                       + (" + Stoner magnetism" if magnetic else ""), "spin": res.summary()}
+    parent, comp = alloy_parent(info)
+    lor = dataclasses.replace(settings, method="lorentzian")
+    res = cpa_solve(parent, comp, params, lor, CPASettings(eta=settings.width))
+    rec = {"method": "coherent potential approximation", "composition": comp,
+           "parent": info["parent"], "eta_eV": settings.width,
+           "report": res.dos.settings.get("cpa")}
+    if settings.method != "lorentzian":
+        rec["note"] = (f"CPA evaluates the Green function at E + iη: the DOS is Lorentzian "
+                       f"with η = {settings.width} eV (the --method was {settings.method})")
+    return res.dos, rec
