@@ -4,7 +4,9 @@ The free parameters are the factors of the default rule r₀ = factor × r_cov
 (:func:`valband.twocentre.confined_atom`): s, p, d orbital radii and the density radius, power
 2. One evaluation, for each metal of the fit (Ni, Cu, Pd, Pt):
 
-1. the confined atom with those factors (scalar-relativistic, "solid" configuration);
+1. the confined atom with those factors (scalar-relativistic, "solid" configuration, the atom
+   engine's default exchange: with the MacDonald–Vosko relativistic correction since it
+   became the default; runs 1–3 in ``benchmarks/results/`` predate it);
 2. its like-pair table on the generator's 32-node grid with a coarse two-centre quadrature
    (radial step 0.12, 24 angular points; integrals within ~3×10⁻⁵ eV of the default grid);
 3. the one-element parameter set with the generator's cutoff tolerances, the fcc metal at
