@@ -66,7 +66,7 @@ def _line_of(text: str, needle: str) -> int:
      "Zr hcpp"),
     ("seed={seed}", "seed={sed}", "system[0].structures[0]", "seed={sed}"),
     ("step = 0.5", "step = 0.3", "system[0].step", "step = 0.3"),
-    ('window = [-12.0, 6.0]', 'window = [6.0, -12.0]', "defaults.window", "window = [6.0"),
+    ('window = [-7.0, 5.0]', 'window = [6.0, -12.0]', "defaults.window", "window = [6.0"),
 ])
 def test_malformed_values_name_line_and_key(old, new, key, needle):
     text = SMALL.replace(old, new, 1)

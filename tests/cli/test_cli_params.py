@@ -179,3 +179,48 @@ def test_fit_bad_reference(capsys, tmp_path, fit_case):
     code, _, err = run(capsys, "params", "fit", str(base_path), str(ref), "--structure",
                        "Cu fcc 3.615", "--out", str(tmp_path / "f"))
     assert code == 1 and "8 band energies" in err and "missing band" in err
+
+
+# --------------------------------------------------------------------------- orthogonal
+def test_orthogonal_writes_a_valid_counterpart(capsys, tmp_path):
+    # a small, quick run (two sp elements, coarse mesh): the file must pass the format-v1
+    # validator, be orthogonal, carry the command and the band errors, and the JSON report
+    # must give the same figures as the provenance
+    out = tmp_path / "o.toml"
+    code, text, _ = run(capsys, "params", "orthogonal", "valband-tc-2026", "--elements",
+                        "Al,Ga", "--mesh", "3", "--max-evaluations", "6", "--out", str(out),
+                        "--json", "--quiet")
+    assert code == 0
+    report = json.loads(text)
+    ps = load_parameter_set(out)
+    assert ps.orthogonal and set(ps.elements) == {"Al", "Ga"} and len(ps.pairs) == 3
+    prov = json.loads(ps.provenance)
+    assert prov["command"].startswith("valband params orthogonal valband-tc-2026 --out")
+    assert prov["source_set"]["name"] == "valband-tc-2026"
+    for el in ("Al", "Ga"):
+        assert prov["band_rms_eV"][el]["window_fit"] == pytest.approx(
+            report["quality"][el]["rms_window_fit"], abs=1e-4)
+    assert "Al-Ga" in report["pairs"]
+
+
+@pytest.mark.parametrize(
+    "argv,message",
+    [
+        (["valband-tc-2026", "--out", "o.txt"], "ending in .toml"),
+        (["valband-tc-2026", "--out", "o.toml", "--elements", "Al,Xx"], "has no element 'Xx'"),
+        (["valband-tc-2026", "--out", "o.toml", "--mesh", "1"], "accepted: an integer 2-40"),
+        (["valband-tc-2026", "--out", "o.toml", "--pair-threshold", "-1"], "pair_threshold"),
+    ],
+)
+def test_orthogonal_bad_input(capsys, argv, message):
+    code, _, err = run(capsys, "params", "orthogonal", *argv, "--quiet")
+    assert code == 1
+    assert message in err and "valband params: error:" in err
+
+
+def test_show_names_the_counterpart_and_its_fit(capsys):
+    code, out, _ = run(capsys, "params", "show", "valband-tc-2026")
+    assert code == 0 and "orthogonal counterpart: valband-tc-2026-orth" in out
+    code, out, _ = run(capsys, "params", "show", "valband-tc-2026-orth")
+    assert code == 0 and "fitted to the bands of valband-tc-2026" in out
+    assert "refitted to compounds" in out

@@ -505,8 +505,9 @@ def _check_inputs(parent, composition, params, settings, cpa):
         raise ParameterError(
             f"parameter set {params.name!r} is non-orthogonal; the CPA here needs an orthogonal "
             "set (with an overlap the Löwdin-orthogonalised onsite part is k-dependent and not "
-            "site-diagonal, so diagonal-disorder CPA does not apply); accepted: orthogonal sets "
-            "such as 'harrison-universal'"
+            "site-diagonal, so diagonal-disorder CPA does not apply); accepted: an orthogonal "
+            f"set, e.g. its counterpart valband.params.orthogonal_counterpart({params.name!r}) "
+            "(made by 'valband params orthogonal SET'; the CLI and campaigns use it by themselves)"
         )
     s = settings or DOSSettings(method="lorentzian", width=0.05, step=0.05)
     s.validate()

@@ -44,6 +44,7 @@ def _cpa_dos(structure, info: dict, params, settings: dict, composition=None):
     """
     from valband.alloy import CPASettings, cpa_dos
     from valband.errors import SettingsError
+    from valband.params import orthogonal_counterpart
     from valband.workflows import DOSSettings
     from valband.workflows.methods import alloy_parent
 
@@ -60,7 +61,7 @@ def _cpa_dos(structure, info: dict, params, settings: dict, composition=None):
     eta = float(settings.get("eta", settings.get("width", 0.1)))
     s = DOSSettings(mesh=tuple(mesh) if isinstance(mesh, list) else mesh, mesh_kind="gamma",
                     method="lorentzian", width=eta, step=float(settings.get("step", 0.02)))
-    return cpa_dos(parent, comp, params, s, CPASettings(eta=eta))
+    return cpa_dos(parent, comp, orthogonal_counterpart(params), s, CPASettings(eta=eta))
 
 
 def _kmesh_dos(structure, info: dict, params, settings: dict):
@@ -82,7 +83,9 @@ def _kmesh_dos(structure, info: dict, params, settings: dict):
 
 
 def _kpm_dos(structure, info: dict, params, settings: dict, seed: int):
+    """KPM DOS on the orthogonal counterpart of the set (an S solve per step costs ~300×)."""
     from valband.kpm import KPMSettings, build_sparse, compute_kpm_dos
+    from valband.params import orthogonal_counterpart
 
     reps = tuple(settings.get("repeat", (1, 1, 1)))
     big = structure.repeat(reps) if reps != (1, 1, 1) else structure
@@ -101,7 +104,7 @@ def _kpm_dos(structure, info: dict, params, settings: dict, seed: int):
             "memory_mb", "lanczos_steps")
     kw = {k: settings[k] for k in keys if k in settings}
     s = KPMSettings(seed=int(seed), resolve=resolve, threads=1, **kw)
-    return compute_kpm_dos(build_sparse(big, params), s, groups=groups)
+    return compute_kpm_dos(build_sparse(big, orthogonal_counterpart(params)), s, groups=groups)
 
 
 def _descriptors(dos, shells, window) -> dict:
@@ -156,6 +159,7 @@ def _provenance(inputs: dict, dos) -> dict:
     return {
         "valband_version": valband.__version__,
         "parameter_set": inputs["params"],
+        "parameter_set_used": dos.provenance.get("parameter_set"),
         "structure": {k: dos.provenance.get("structure", {}).get(k)
                       for k in ("formula", "source", "n_sites", "space_group")},
         "seed": inputs["seed"],

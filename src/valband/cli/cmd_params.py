@@ -3,7 +3,8 @@
 ``valband params generate EL1 EL2 …`` writes a two-centre set for the elements and all their
 pairs (:mod:`valband.twocentre.generate`); ``valband params show SET`` summarises a set;
 ``valband params fit SET REFERENCE --structure SPEC --out DIR`` refines a set against reference
-band energies (:mod:`valband.params.fitting`).
+band energies (:mod:`valband.params.fitting`); ``valband params orthogonal SET --out FILE.toml``
+fits an orthogonal counterpart of a set to its bands (:mod:`valband.params.orthogonal`).
 """
 
 from __future__ import annotations
@@ -89,6 +90,30 @@ def add_arguments(p) -> None:
                    help="residual evaluations allowed (default 400)")
     f.add_argument("--format", default="png", choices=["png", "svg"], help="plot format")
     f.add_argument("--json", action="store_true", help="print the report as JSON")
+
+
+    o = sub.add_parser("orthogonal", help="fit an orthogonal counterpart of a set to its bands "
+                       "(for CPA and fast KPM)",
+                       description="Fit an orthogonal s p d set to the band energies of a "
+                       "(non-orthogonal) set on its absolute energy scale: like pairs fitted "
+                       "per element on fcc/bcc/hcp crystals at several strains, unlike pairs "
+                       "from a combination rule (valband.params.orthogonal).")
+    o.add_argument("set", metavar="SET", help="source set: shipped name or .toml path")
+    o.add_argument("--out", required=True, metavar="FILE.toml", help="file to write")
+    o.add_argument("--name", default=None, help="name of the new set (default SET-orth)")
+    o.add_argument("--elements", default=None, metavar="EL1,EL2,...",
+                   help="only these elements and their pairs (default: all of the source)")
+    o.add_argument("--mesh", type=int, default=None,
+                   help="Γ-centred k-mesh per axis of every fitted crystal (default 6)")
+    o.add_argument("--max-evaluations", type=int, default=None,
+                   help="residual evaluations per element (default 60)")
+    o.add_argument("--pair-threshold", type=float, default=None, metavar="EV",
+                   help="refit unlike pairs whose combination rule misses the source's compound "
+                   "bands by more than this RMS (default 0.35 eV)")
+    o.add_argument("--rule-only", action="store_true",
+                   help="no pair refits: every unlike pair from the combination rule")
+    o.add_argument("--json", action="store_true", help="print the fit quality as JSON")
+    o.add_argument("--quiet", action="store_true", help="no progress messages")
 
 
 def _pairs_of(option: str, items: list[str], shells: bool) -> dict:
@@ -237,6 +262,11 @@ def _show_summary(ps) -> dict:
             record = json.loads(ps.provenance[len(PROVENANCE_PREFIX):].split(" | ", 1)[0])
         except json.JSONDecodeError:
             record = None
+    elif ps.provenance.startswith("{"):  # e.g. valband params orthogonal writes a JSON record
+        try:
+            record = json.loads(ps.provenance)
+        except json.JSONDecodeError:
+            record = None
     pairs = {}
     for p in ps.pairs.values():
         ranges = [x for x in (_range_of(law) for law in p.hopping.values()) if x]
@@ -251,6 +281,7 @@ def _show_summary(ps) -> dict:
         "schema": JSON_SCHEMA, "schema_version": 1,
         "name": ps.name, "version": ps.version, "origin": ps.origin,
         "description": ps.description, "orthogonal": ps.orthogonal,
+        "orthogonal_counterpart": ps.orthogonal_counterpart,
         "elements": {el: {"shells": d["shells"], "onsite_eV": d["onsite_eV"],
                           "valence_electrons": d["valence_electrons"]}
                      for el, d in summary["elements"].items()},
@@ -271,6 +302,8 @@ def _show(args) -> int:
     kind = "orthogonal" if s["orthogonal"] else "non-orthogonal"
     print(f"{s['name']} (version {s['version']}), {kind}; {s['origin']}")
     print(f"  {s['description']}")
+    if s["orthogonal_counterpart"]:
+        print(f"  orthogonal counterpart: {s['orthogonal_counterpart']}")
     print(f"elements ({len(s['elements'])}):  onsite energies in eV")
     for el, d in s["elements"].items():
         onsite = "  ".join(f"{sh} {v:8.3f}" for sh, v in d["onsite_eV"].items())
@@ -304,6 +337,16 @@ def _show(args) -> int:
         if q:
             print(f"  quadrature: {q.get('n_radial')} radial x {q.get('n_angular')} angular "
                   "points per centre")
+        if isinstance(prov.get("band_rms_eV"), dict):  # an orthogonal counterpart's fit
+            src = prov.get("source_set", {})
+            print(f"  fitted to the bands of {src.get('name')} in {prov.get('seconds')} s; band "
+                  "rms (eV, E_F-10..+3 eV, fitted / held-out strains):")
+            print("   " + ", ".join(f"{el} {q['window_fit']:.2f}/{q['window_held_out']:.2f}"
+                                    for el, q in prov["band_rms_eV"].items()))
+            up = prov.get("unlike_pairs", {})
+            if isinstance(up, dict):
+                print(f"  unlike pairs: {up.get('rule')}; {len(up.get('refitted', {}))} "
+                      f"refitted to compounds (rule rms > {up.get('refit_above_eV')} eV)")
         conf = prov.get("confinement", {})
         for el, c in list(conf.items())[:20]:
             radii = ", ".join(f"{sh} {v:.2f}" for sh, v in c.get("r0_orbitals_bohr", {}).items())
@@ -398,6 +441,75 @@ def _print_fit(result, set_path, plot) -> None:
     print(f"refined set: {set_path}\nplot: {plot}")
 
 
+def _orthogonal(args) -> int:
+    import json
+    from pathlib import Path
+
+    from valband.errors import SettingsError
+    from valband.output import atomic_write
+    from valband.params import ParameterSet, dumps, load_parameter_set
+    from valband.params.orthogonal import OrthogonalFitSettings, fit_orthogonal_set
+
+    out = Path(args.out)
+    if out.suffix != ".toml":
+        raise SettingsError(f"--out {out}: accepted: a file name ending in .toml")
+    source = load_parameter_set(args.set)
+    kw = {}
+    if args.mesh is not None:
+        kw["mesh"] = args.mesh
+    if args.max_evaluations is not None:
+        kw["max_evaluations"] = args.max_evaluations
+    if args.pair_threshold is not None:
+        kw["pair_threshold"] = args.pair_threshold
+    if args.rule_only:
+        kw["pair_threshold"] = None
+    settings = OrthogonalFitSettings(**kw)
+    els = None
+    if args.elements:
+        els = [e.strip() for e in args.elements.split(",") if e.strip()]
+    words = ["valband", "params", "orthogonal", args.set, "--out", args.out]
+    for opt in ("name", "elements", "mesh", "max_evaluations", "pair_threshold"):
+        value = getattr(args, opt)
+        if value is not None:
+            words += [f"--{opt.replace('_', '-')}", str(value)]
+    if args.rule_only:
+        words.append("--rule-only")
+    command = " ".join(shlex.quote(w) for w in words)
+
+    def progress(msg: str) -> None:
+        if not args.quiet:
+            print(f"  {msg}", file=sys.stderr, flush=True)
+
+    result = fit_orthogonal_set(source, els, settings, name=args.name, command=command,
+                                progress=progress)
+    ParameterSet.from_dict(result.data, origin=str(out))  # validate before writing
+    with atomic_write(out) as fh:
+        fh.write(dumps(result.data))
+    ps = result.parameter_set
+    if args.json:
+        print(json.dumps({"schema": JSON_SCHEMA, "file": str(out), "name": ps.name,
+                          "seconds": result.seconds, "quality": result.quality(),
+                          "pairs": {k: p.to_dict() for k, p in result.pairs.items()}},
+                         indent=2))
+        return 0
+    print(f"wrote {out}: orthogonal set {ps.name!r}, {len(ps.elements)} elements, "
+          f"{len(ps.pairs)} pairs, {result.seconds:.0f} s")
+    print("band rms in the window E_F-10..E_F+3 eV (eV): element fitted held-out max-held-out")
+    for el, q in result.quality().items():
+        print(f"  {el:3s} {q['rms_window_fit']:8.3f} {q['rms_window_check']:8.3f} "
+              f"{q['max_window_check']:8.3f}")
+    refit = [p for p in result.pairs.values() if p.fitted]
+    print(f"unlike pairs: {len(result.pairs)} checked on B2/L1_2 compounds, {len(refit)} refitted"
+          + (f" (rule rms > {settings.pair_threshold:g} eV)" if settings.pair_threshold is not None
+             else ""))
+    if not source.orthogonal:
+        print(f"to let {source.name} name it, add to its top level: "
+              f"orthogonal_counterpart = \"{out.name}\" (a path relative to the set's file) "
+              "or the shipped name")
+    return 0
+
+
 def run(args) -> int:
-    """Dispatch to generate, show or fit."""
-    return {"generate": _generate, "show": _show, "fit": _fit}[args.params_command](args)
+    """Dispatch to generate, show, fit or orthogonal."""
+    return {"generate": _generate, "show": _show, "fit": _fit,
+            "orthogonal": _orthogonal}[args.params_command](args)

@@ -21,6 +21,7 @@ from valband.params.model import (
     integral_shells,
     list_parameter_sets,
     load_parameter_set,
+    orthogonal_counterpart,
 )
 from valband.params.schema import SCHEMA_VERSIONS
 from valband.params.toml_writer import dumps, write_parameter_set
@@ -41,6 +42,7 @@ __all__ = [
     "integral_shells",
     "load_parameter_set",
     "list_parameter_sets",
+    "orthogonal_counterpart",
     "dumps",
     "write_parameter_set",
 ]

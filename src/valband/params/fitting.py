@@ -324,9 +324,14 @@ def adjusted_parameter_dict(
 
 # ------------------------------------------------------------------------- evaluator
 class _Evaluator:
-    """Fast band energies of one structure under parameter changes (bond list built once)."""
+    """Fast band energies of one structure under parameter changes (bond list built once).
 
-    def __init__(self, structure, params: ParameterSet, settings: FitSettings):
+    ``r_ref`` (optional, pair key → Å) fixes the distance about which exponent changes act
+    (default: the pair's shortest bond in the structure).
+    """
+
+    def __init__(self, structure, params: ParameterSet, settings: FitSettings,
+                 r_ref: dict[str, float] | None = None):
         from valband.tb import build_model
 
         self.structure = structure
@@ -360,6 +365,8 @@ class _Evaluator:
                     stored = _LIKE_FORWARD.get(stored, stored)
                 cols.append((k, stored))
             self.columns[(a, b)] = cols
+        if r_ref is not None:  # exponent changes about given distances (A-B key -> Å)
+            self.r_ref.update(r_ref)
         self.local = {}
         for el in structure.elements:
             rec = params.element(el)
@@ -411,6 +418,10 @@ class _Evaluator:
             for n, ib in enumerate(idx):
                 blocks[ib] = cut[n]
         return dataclasses.replace(m, onsite=eps, bond_hamiltonian=tuple(blocks))
+
+
+#: Public name of the evaluator (used by :mod:`valband.params.orthogonal`).
+BandEvaluator = _Evaluator
 
 
 def model_bands(model, kpoints: NDArray[np.float64]) -> NDArray[np.float64]:

@@ -32,6 +32,7 @@ __all__ = [
     "load_parameter_set",
     "list_parameter_sets",
     "integral_shells",
+    "orthogonal_counterpart",
 ]
 
 #: The 14 two-centre integrals in column order: (shell on first atom)(shell on second atom)
@@ -172,6 +173,9 @@ class ParameterSet:
         direction the file gives it.
     origin : str or None
         File the set was read from (for messages); not part of equality.
+    orthogonal_counterpart : str or None
+        Optional, non-orthogonal sets only: a shipped set name or a ``.toml`` path (relative
+        to this set's file) of its orthogonal counterpart; see :func:`orthogonal_counterpart`.
     """
 
     name: str
@@ -183,6 +187,7 @@ class ParameterSet:
     elements: dict[str, ElementParams]
     pairs: dict[tuple[str, str], PairParams]
     origin: str | None = field(default=None, compare=False)
+    orthogonal_counterpart: str | None = None
 
     # -- lookup ---------------------------------------------------------------------------
     def element(self, symbol: str) -> ElementParams:
@@ -278,16 +283,21 @@ class ParameterSet:
                     sh: {"value": v, "source": el.provenance[f"spin_orbit.{sh}"]}
                     for sh, v in el.spin_orbit.items()
                 }
-        return {
+        out: dict[str, Any] = {
             "schema_version": self.schema_version,
             "name": self.name,
             "version": self.version,
             "description": self.description,
             "orthogonal": self.orthogonal,
+        }
+        if self.orthogonal_counterpart is not None:
+            out["orthogonal_counterpart"] = self.orthogonal_counterpart
+        out |= {
             "provenance": self.provenance,
             "elements": elements,
             "pairs": {p.key: p.to_dict() for p in self.pairs.values()},
         }
+        return out
 
     @classmethod
     def from_dict(cls, d: dict[str, Any], origin: str | None = None) -> ParameterSet:
@@ -304,6 +314,7 @@ class ParameterSet:
             "schema_version": self.schema_version,
             "description": self.description,
             "orthogonal": self.orthogonal,
+            "orthogonal_counterpart": self.orthogonal_counterpart,
             "provenance": self.provenance,
             "origin": self.origin,
             "elements": {
@@ -471,3 +482,54 @@ def load_parameter_set(name_or_path: str | Path) -> ParameterSet:
         + ", ".join(list_parameter_sets())
         + ", or a path to a .toml file"
     )
+
+
+def orthogonal_counterpart(params: ParameterSet | str | Path) -> ParameterSet:
+    """Return the orthogonal set to use in place of ``params`` (CPA, fast KPM).
+
+    An orthogonal set is its own counterpart. A non-orthogonal set names its counterpart with
+    the optional top-level key ``orthogonal_counterpart`` (a shipped set name, or a ``.toml``
+    path, relative paths taken from the set's own folder); without the key the shipped set
+    ``<name>-orth`` is used if there is one.
+
+    Parameters
+    ----------
+    params : ParameterSet, or a name or path that :func:`load_parameter_set` reads
+
+    Raises
+    ------
+    ParameterError
+        The set names no counterpart and no ``<name>-orth`` is shipped (the message says how to
+        make one), or the counterpart is not orthogonal or lacks some of the set's elements.
+    """
+    ps = params if isinstance(params, ParameterSet) else load_parameter_set(params)
+    if ps.orthogonal:
+        return ps
+    ref = ps.orthogonal_counterpart
+    if ref is None:
+        if f"{ps.name}-orth" not in list_parameter_sets():
+            raise ParameterError(
+                f"parameter set {ps.name!r} is non-orthogonal and names no orthogonal "
+                f"counterpart; accepted: an orthogonal set, or make one with 'valband params "
+                f"orthogonal {ps.origin or ps.name} --out {ps.name}-orth.toml' and add "
+                f"orthogonal_counterpart = \"{ps.name}-orth.toml\" to the set's top level")
+        ref = f"{ps.name}-orth"
+    target: str | Path = ref
+    looks_like_path = ref.endswith(".toml") or "/" in ref or "\\" in ref
+    if looks_like_path and ps.origin and not Path(ref).is_absolute():
+        target = Path(ps.origin).parent / ref
+    try:
+        orth = load_parameter_set(target)
+    except ParameterError as exc:
+        raise ParameterError(f"parameter set {ps.name!r}: its orthogonal counterpart {ref!r} "
+                             f"cannot be loaded: {exc}") from None
+    if not orth.orthogonal:
+        raise ParameterError(f"parameter set {ps.name!r}: its orthogonal counterpart "
+                             f"{orth.name!r} is not orthogonal; accepted: a set with "
+                             "orthogonal = true")
+    missing = sorted(set(ps.elements) - set(orth.elements))
+    if missing:
+        raise ParameterError(f"parameter set {ps.name!r}: its orthogonal counterpart "
+                             f"{orth.name!r} lacks {', '.join(missing)}; accepted: a "
+                             "counterpart with every element of the set")
+    return orth

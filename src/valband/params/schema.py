@@ -186,6 +186,7 @@ def parse_parameter_dict(d: Any, origin: str | None = None) -> ParameterSet:
         (),
         ("schema_version", "name", "version", "description", "orthogonal", "provenance",
          "elements", "pairs"),
+        ("orthogonal_counterpart",),
     )  # fmt: skip
     name = rd.string(top["name"], ("name",))
     version = rd.string(top["version"], ("version",))
@@ -196,6 +197,16 @@ def parse_parameter_dict(d: Any, origin: str | None = None) -> ParameterSet:
         rd.fail(
             ("orthogonal",), f"expected a boolean, got {_typename(orthogonal)}", "true or false"
         )
+
+    counterpart = None
+    if "orthogonal_counterpart" in top:
+        counterpart = rd.string(top["orthogonal_counterpart"], ("orthogonal_counterpart",))
+        if orthogonal:
+            rd.fail(("orthogonal_counterpart",), "an orthogonal set names an orthogonal "
+                    "counterpart", "the key only in sets with orthogonal = false")
+        if counterpart.strip() != counterpart or "\n" in counterpart:
+            rd.fail(("orthogonal_counterpart",), f"{counterpart!r} has surrounding spaces or "
+                    "a line break", "a shipped set name or a .toml path (relative to this file)")
 
     elements_raw = rd.table(top["elements"], ("elements",))
     if not elements_raw:
@@ -226,6 +237,7 @@ def parse_parameter_dict(d: Any, origin: str | None = None) -> ParameterSet:
         elements=elements,
         pairs=pairs,
         origin=origin,
+        orthogonal_counterpart=counterpart,
     )
 
 

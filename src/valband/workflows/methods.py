@@ -217,12 +217,17 @@ def _alloy_dos(model, info, settings, params, alloy, progress):
         return dos, {"method": "virtual crystal approximation", "composition": comp,
                      "parent": info["parent"]}
     from valband.alloy import CPASettings, cpa_solve
+    from valband.params import orthogonal_counterpart
 
     parent, comp = alloy_parent(info)
     lor = dataclasses.replace(settings, method="lorentzian")
-    res = cpa_solve(parent, comp, params, lor, CPASettings(eta=settings.width))
+    used = orthogonal_counterpart(params)
+    res = cpa_solve(parent, comp, used, lor, CPASettings(eta=settings.width))
     rec = {"method": "coherent potential approximation", "composition": comp,
            "parent": info["parent"], "eta_eV": settings.width,
+           "parameter_set_used": {"name": used.name, "version": used.version,
+                                  "orthogonal_counterpart_of": None if used is params
+                                  else params.name},
            "report": res.dos.settings.get("cpa")}
     if settings.method != "lorentzian":
         rec["note"] = (f"CPA evaluates the Green function at E + iη: the DOS is Lorentzian "
