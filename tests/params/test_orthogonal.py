@@ -316,3 +316,18 @@ def test_counterpart_errors_say_what_to_do(tmp_path):
                                   origin=str(tmp_path / "here.toml"))
     with pytest.raises(ParameterError, match=r"cannot be loaded"):
         orthogonal_counterpart(gone)
+
+
+def test_cautions_of_the_shipped_sets_are_printed_and_recorded(capsys, tmp_path):
+    # every set that carries a caution has it printed and written into summary.json
+    import json
+
+    from valband.cli.main import main
+
+    for name in ("harrison-universal", "valband-tc-2026-orth", "example-nonorthogonal"):
+        assert load_parameter_set(name).caution
+    assert main(["dos", "Cu fcc", "--params", "harrison-universal", "--mesh", "4",
+                 "--out", str(tmp_path / "h")]) == 0
+    assert "caution (harrison-universal): band shapes and workflow only" in capsys.readouterr().err
+    s = json.loads((tmp_path / "h" / "summary.json").read_text())
+    assert s["provenance"]["parameter_set"]["caution"].startswith("band shapes")

@@ -181,6 +181,8 @@ def load_model_with_info(args):
 
     structure, info = load_structure_with_info(args.structure)
     params = load_parameter_set(args.params)
+    if params.caution and not (getattr(args, "quiet", False) or getattr(args, "json", False)):
+        print(f"caution ({params.name}): {params.caution}", file=sys.stderr)
     return build_model(structure, params), info
 
 

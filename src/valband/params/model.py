@@ -176,6 +176,9 @@ class ParameterSet:
     orthogonal_counterpart : str or None
         Optional, non-orthogonal sets only: a shipped set name or a ``.toml`` path (relative
         to this set's file) of its orthogonal counterpart; see :func:`orthogonal_counterpart`.
+    caution : str or None
+        Optional: what the set must not be trusted for; every command prints it and every
+        output records it.
     """
 
     name: str
@@ -188,6 +191,7 @@ class ParameterSet:
     pairs: dict[tuple[str, str], PairParams]
     origin: str | None = field(default=None, compare=False)
     orthogonal_counterpart: str | None = None
+    caution: str | None = None
 
     # -- lookup ---------------------------------------------------------------------------
     def element(self, symbol: str) -> ElementParams:
@@ -292,6 +296,8 @@ class ParameterSet:
         }
         if self.orthogonal_counterpart is not None:
             out["orthogonal_counterpart"] = self.orthogonal_counterpart
+        if self.caution is not None:
+            out["caution"] = self.caution
         out |= {
             "provenance": self.provenance,
             "elements": elements,
@@ -315,6 +321,7 @@ class ParameterSet:
             "description": self.description,
             "orthogonal": self.orthogonal,
             "orthogonal_counterpart": self.orthogonal_counterpart,
+            "caution": self.caution,
             "provenance": self.provenance,
             "origin": self.origin,
             "elements": {

@@ -334,9 +334,12 @@ def _cutoff(r0: float, s: OrthogonalFitSettings) -> dict:
 
 
 def _set_dict(source: ParameterSet, name: str, elements: dict, pairs: dict, provenance: str,
-              description: str) -> dict:
-    return {"schema_version": 1, "name": name, "version": "1", "description": description,
-            "orthogonal": True, "provenance": provenance, "elements": elements, "pairs": pairs}
+              description: str, caution: str | None = None) -> dict:
+    out = {"schema_version": 1, "name": name, "version": "1", "description": description,
+           "orthogonal": True, "provenance": provenance, "elements": elements, "pairs": pairs}
+    if caution is not None:
+        out["caution"] = caution
+    return out
 
 
 # ------------------------------------------------------------------------------ element fit
@@ -691,10 +694,19 @@ def fit_orthogonal_set(
         source, set_name, elements_d, pairs, json.dumps(prov, sort_keys=True),
         f"Orthogonal s p d counterpart of {source.name}, fitted to its bands on its absolute "
         "energy scale (for CPA and fast KPM); an estimate of the source set, errors in the "
-        "provenance")
+        "provenance", caution=_caution(source, fits))
     ps = ParameterSet.from_dict(data, origin=set_name)
     return OrthogonalFitResult(data=data, parameter_set=ps, fits=fits, seconds=seconds,
                                pairs=pair_fits)
+
+
+def _caution(source: ParameterSet, fits) -> str:
+    """The caution every output of the counterpart carries: its measured band errors."""
+    held = [f.rms_window_check for f in fits.values()]
+    return (f"an orthogonal fit to the bands of {source.name} (held-out band RMS "
+            f"{min(held):.2f}-{max(held):.2f} eV over E_F-10..E_F+3 eV, per element in the "
+            "provenance), used where an orthogonal basis is needed (CPA, KPM): its results "
+            "estimate the source set's")
 
 
 # ------------------------------------------------------------------------------ checks

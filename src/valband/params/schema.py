@@ -186,7 +186,7 @@ def parse_parameter_dict(d: Any, origin: str | None = None) -> ParameterSet:
         (),
         ("schema_version", "name", "version", "description", "orthogonal", "provenance",
          "elements", "pairs"),
-        ("orthogonal_counterpart",),
+        ("orthogonal_counterpart", "caution"),
     )  # fmt: skip
     name = rd.string(top["name"], ("name",))
     version = rd.string(top["version"], ("version",))
@@ -207,6 +207,12 @@ def parse_parameter_dict(d: Any, origin: str | None = None) -> ParameterSet:
         if counterpart.strip() != counterpart or "\n" in counterpart:
             rd.fail(("orthogonal_counterpart",), f"{counterpart!r} has surrounding spaces or "
                     "a line break", "a shipped set name or a .toml path (relative to this file)")
+
+    caution = None
+    if "caution" in top:
+        caution = rd.string(top["caution"], ("caution",))
+        if not caution.strip():
+            rd.fail(("caution",), "empty caution", "a sentence saying what the set is not for")
 
     elements_raw = rd.table(top["elements"], ("elements",))
     if not elements_raw:
@@ -238,6 +244,7 @@ def parse_parameter_dict(d: Any, origin: str | None = None) -> ParameterSet:
         pairs=pairs,
         origin=origin,
         orthogonal_counterpart=counterpart,
+        caution=caution,
     )
 
 

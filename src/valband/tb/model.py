@@ -120,6 +120,8 @@ class TBModel:
         Hopping block ⟨i α | H | j+R β⟩ of each stored bond, cut to the two sites' orbitals.
     bond_overlap : tuple of ndarray or None
         Overlap block of each stored bond, or None when orthogonal.
+    parameter_caution : str or None
+        The parameter set's caution (its optional ``caution`` key), for every output.
     """
 
     structure: Structure
@@ -136,6 +138,7 @@ class TBModel:
     bond_vectors: NDArray[np.float64]
     bond_hamiltonian: tuple[NDArray[np.float64], ...]
     bond_overlap: tuple[NDArray[np.float64], ...] | None
+    parameter_caution: str | None = None
 
     def __post_init__(self) -> None:
         norb = len(self.orbitals)
@@ -514,4 +517,5 @@ def build_model(structure: Structure, params) -> TBModel:
         bond_vectors=vectors,
         bond_hamiltonian=tuple(hblocks),  # type: ignore[arg-type]
         bond_overlap=None if orthogonal else tuple(sblocks),  # type: ignore[arg-type]
+        parameter_caution=getattr(params, "caution", None),
     )

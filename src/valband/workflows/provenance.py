@@ -31,7 +31,8 @@ def provenance_of(model) -> dict:
             "symbols": list(st.symbols),
             "positions_angstrom": st.positions.tolist(),
         },
-        "parameter_set": {"name": model.parameter_set, "version": model.parameter_version},
+        "parameter_set": {"name": model.parameter_set, "version": model.parameter_version,
+                          "caution": getattr(model, "parameter_caution", None)},
         "software": {
             "python": platform.python_version(),
             "numpy": numpy.__version__,
