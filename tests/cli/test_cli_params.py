@@ -50,6 +50,29 @@ def test_generate_writes_a_valid_set(al_set):
         assert word in ps.provenance
 
 
+def test_rule_option_sets_the_factors(tmp_path, capsys):
+    # --rule reaches the atoms: r0 = factor x covalent radius (ase.data.covalent_radii, Al
+    # 1.21 Å) in the recorded confinement, and the output states the rule used
+    path = tmp_path / "al-rule.toml"
+    code = main(["params", "generate", "Al", "--out", str(path), "--distances", "12",
+                 "--rule", "s=1.45,p=1.8,density=1.55", "--quiet"])
+    out, _ = capsys.readouterr()
+    assert code == 0 and "s 1.45, p 1.8, d 1.68, density 1.55" in out
+    ps = load_parameter_set(path)
+    from valband.twocentre.generate import settings_from_provenance
+
+    s = settings_from_provenance(ps.provenance)
+    assert s.r0_factors == {"s": 1.45, "p": 1.8, "d": 1.68} and s.density_factor == 1.55
+    from valband.twocentre.generate import PROVENANCE_PREFIX
+
+    record = json.loads(ps.provenance[len(PROVENANCE_PREFIX):].split(" | ", 1)[0])
+    rcov = 1.21 / 0.529177210903  # bohr (CODATA 2018 Bohr radius 0.529177210903 Å)
+    al = record["confinement"]["Al"]
+    assert al["r0_density_bohr"] == pytest.approx(1.55 * rcov, rel=1e-9)
+    assert al["r0_orbitals_bohr"]["s"] == pytest.approx(1.45 * rcov, rel=1e-9)
+    assert "--rule" in record["command"]
+
+
 def test_show_text_and_json(capsys, al_set):
     code, out, _ = run(capsys, "params", "show", str(al_set))
     assert code == 0
@@ -83,6 +106,9 @@ def test_show_harrison_digest(capsys):
         (["Al", "--distances", "3"], "n_distances"),
         (["Al", "--distances", "5:2:10"], "accepted: N"),
         (["Al", "--out", "set.txt"], "ending in .toml"),
+        (["Al", "--rule", "d=x"], "accepted: comma-separated s=F"),
+        (["Al", "--rule", "f=1.2"], "accepted: comma-separated s=F"),
+        (["Al", "--rule", "s=1,s=2"], "each at most once"),
     ],
 )
 def test_generate_bad_input(capsys, argv, message):

@@ -65,6 +65,52 @@ def test_provenance_of_other_sets_is_refused():
         settings_from_provenance(load_parameter_set("harrison-universal").provenance)
 
 
+def test_provenance_without_factor_settings_means_the_old_rule():
+    # records written before r0_factors/density_factor were settings (valband-tc-2026) were made
+    # with the rule of that time; a new record carries its own factors (regression guard of
+    # the provenance round trip, no physics)
+    from valband.twocentre.confinement import (
+        DENSITY_R0_FACTOR,
+        LEGACY_DENSITY_R0_FACTOR,
+        LEGACY_SHELL_R0_FACTORS,
+        SHELL_R0_FACTORS,
+    )
+    from valband.twocentre.generate import PROVENANCE_PREFIX
+
+    old = GenerationSettings().to_dict()
+    del old["r0_factors"], old["density_factor"]
+    import json
+
+    back = settings_from_provenance(PROVENANCE_PREFIX + json.dumps({"generation": old}))
+    assert back.r0_factors == LEGACY_SHELL_R0_FACTORS == {"s": 1.45, "p": 1.8, "d": 0.85}
+    assert back.density_factor == LEGACY_DENSITY_R0_FACTOR == 1.55
+    new = GenerationSettings()
+    assert new.r0_factors == SHELL_R0_FACTORS and new.density_factor == DENSITY_R0_FACTOR
+    rec = PROVENANCE_PREFIX + json.dumps({"generation": new.to_dict()})
+    assert settings_from_provenance(rec) == new
+    assert load_parameter_set("valband-tc-2026") is not None
+    shipped = settings_from_provenance(load_parameter_set("valband-tc-2026").provenance)
+    assert shipped.r0_factors == LEGACY_SHELL_R0_FACTORS
+
+
+def test_factor_rule_reaches_the_atoms():
+    # the rule r0 = factor x r_cov (ase covalent radii) is applied per shell and for the density
+    from valband.twocentre.confinement import default_r0
+
+    s = GenerationSettings(r0_factors={"s": 1.2, "p": 1.7, "d": 1.4}, density_factor=1.3)
+    opts = s.atom_options("Cu")
+    from valband.twocentre import confined_atom
+
+    cu = confined_atom("Cu", **opts)
+    for sh, f in (("s", 1.2), ("p", 1.7), ("d", 1.4)):
+        assert cu.shell_r0[sh] == pytest.approx(f * default_r0("Cu"))
+    assert cu.r0_density == pytest.approx(1.3 * default_r0("Cu"))
+    with pytest.raises(SettingsError, match="r0_factors"):
+        confined_atom("Cu", r0_factors={"f": 1.0})
+    with pytest.raises(SettingsError, match="density_factor"):
+        confined_atom("Cu", density_factor=-1.0)
+
+
 def test_relativistic_exchange_setting_and_old_records():
     # default: "auto" (on with scalar relativity); a record written before the setting existed
     # (valband-tc-2026) reads as "off", the atoms it was generated with

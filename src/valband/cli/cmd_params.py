@@ -35,6 +35,11 @@ def add_arguments(p) -> None:
                    "valband.twocentre.confinement)")
     g.add_argument("--r0-density", action="append", default=[], metavar="EL=BOHR",
                    help="density confinement radius in bohr for an element (repeatable)")
+    g.add_argument("--rule", default=None, metavar="s=F,p=F,d=F,density=F",
+                   help="default rule r0 = F x covalent radius for elements without --r0 / "
+                   "--r0-density (default: the fitted rule of valband.twocentre.confinement, "
+                   "s 1.29, p 1.71, d 1.68, density 1.28; valband-tc-2026 used s=1.45,p=1.8,"
+                   "d=0.85,density=1.55); shells not named keep the default")
     g.add_argument("--distances", default=None, metavar="N|MIN:MAX:N",
                    help="distance grid: N nodes over 0.6-3.2 times the covalent-radius sum of "
                    "each pair (default 32), or MIN:MAX:N in Å for every pair")
@@ -130,6 +135,28 @@ def _pairs_of(option: str, items: list[str], shells: bool) -> dict:
     return out
 
 
+def _rule(text: str | None) -> dict:
+    from valband.errors import SettingsError
+
+    if text is None:
+        return {}
+    out: dict = {}
+    for item in text.split(","):
+        key, sep, val = item.strip().partition("=")
+        try:
+            x = float(val)
+        except ValueError:
+            x = float("nan")
+        if not sep or key not in ("s", "p", "d", "density") or key in out or not (0 < x < 100):
+            raise SettingsError(f"--rule {text!r}; accepted: comma-separated s=F, p=F, d=F, "
+                                "density=F with factors 0 < F < 100 (each at most once)")
+        out[key] = x
+    from valband.twocentre.confinement import DENSITY_R0_FACTOR, SHELL_R0_FACTORS
+
+    factors = {sh: out.get(sh, f) for sh, f in SHELL_R0_FACTORS.items()}
+    return {"r0_factors": factors, "density_factor": out.get("density", DENSITY_R0_FACTOR)}
+
+
 def _distances(text: str | None) -> dict:
     from valband.errors import SettingsError
 
@@ -175,6 +202,7 @@ def _generate(args) -> int:
                   if set(v) - {"*"}},
         r0_density={el: v["*"] for el, v in rho.items()},
         **_distances(args.distances),
+        **_rule(args.rule),
     )
     name = args.name or "twocentre-" + "-".join(els)
     out = Path(args.out or f"{name}.toml")
@@ -189,7 +217,7 @@ def _generate(args) -> int:
 
     words = ["valband", "params", "generate", *els]
     for opt in ("out", "name", "description", "distances", "relativity",
-                "relativistic-exchange"):
+                "relativistic-exchange", "rule"):
         value = getattr(args, opt.replace("-", "_"))
         if value is not None:
             words += [f"--{opt}", str(value)]
@@ -206,6 +234,9 @@ def _generate(args) -> int:
     print(f"wrote {out}: {len(info['elements'])} elements, {info['n_pairs']} pairs "
           f"({info['atoms_s']:.1f} s atoms, {info['pairs_s']:.1f} s pair tables, "
           f"{len(text) / 1e6:.2f} MB)")
+    rule = ", ".join(f"{sh} {f:g}" for sh, f in settings.r0_factors.items())
+    print(f"confinement rule r0 = factor x r_cov: {rule}, density {settings.density_factor:g} "
+          "(elements without --r0/--r0-density); recorded in the provenance")
     return 0
 
 

@@ -30,6 +30,10 @@ from valband.errors import InputError, ParameterError, SettingsError
 from .confinement import (
     DEFAULT_ONSITE,
     DEFAULT_POWER,
+    DENSITY_R0_FACTOR,
+    LEGACY_DENSITY_R0_FACTOR,
+    LEGACY_SHELL_R0_FACTORS,
+    SHELL_R0_FACTORS,
     ConfinedAtom,
     confined_atom,
 )
@@ -86,6 +90,16 @@ class GenerationSettings:
         Tolerances of the automatic cutoff (eV, dimensionless).
     digits : int
         Decimals kept for the integral values.
+    r0_factors : dict
+        Default rule r₀ = factor × r_cov per shell (elements without explicit radii); default
+        :data:`~valband.twocentre.confinement.SHELL_R0_FACTORS`.
+    density_factor : float
+        Default density radius factor; default
+        :data:`~valband.twocentre.confinement.DENSITY_R0_FACTOR`.
+
+    A provenance record written before these two fields existed (``valband-tc-2026``) was made
+    with the rule s 1.45, p 1.80, d 0.85, density 1.55, which :func:`settings_from_provenance`
+    restores for such records.
     relativistic_exchange : {"auto", "on", "off"}
         MacDonald–Vosko correction of the atoms' exchange; "auto" (default): on for
         relativity="scalar". A provenance record without the field reads as "off"
@@ -106,6 +120,8 @@ class GenerationSettings:
     hopping_tol: float = 5e-3
     overlap_tol: float = 5e-4
     digits: int = 7
+    r0_factors: dict[str, float] = field(default_factory=lambda: dict(SHELL_R0_FACTORS))
+    density_factor: float = DENSITY_R0_FACTOR
     relativistic_exchange: str = "auto"
 
     def validate(self) -> None:
@@ -129,6 +145,8 @@ class GenerationSettings:
         """Keyword arguments of :func:`confined_atom` for one element."""
         opts: dict[str, Any] = {"relativity": self.relativity, "power": self.power,
                                 "configuration": self.configuration, "onsite": self.onsite,
+                                "r0_factors": dict(self.r0_factors),
+                                "density_factor": self.density_factor,
                                 "relativistic_exchange": self.relativistic_exchange}
         if symbol in self.r0:
             opts["r0"] = self.r0[symbol]
@@ -165,6 +183,9 @@ def settings_from_provenance(provenance: str) -> GenerationSettings:
     except KeyError:
         raise ParameterError("the provenance record has no 'generation' settings") from None
     g["distance_range"] = tuple(g["distance_range"])
+    if "r0_factors" not in g:  # written before the rule was a setting: the rule of that time
+        g["r0_factors"] = dict(LEGACY_SHELL_R0_FACTORS)
+        g["density_factor"] = LEGACY_DENSITY_R0_FACTOR
     g.setdefault("relativistic_exchange", LEGACY_RELATIVISTIC_EXCHANGE)
     if g.get("distances") is not None:
         g["distances"] = tuple(g["distances"])
