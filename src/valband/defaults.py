@@ -7,4 +7,4 @@ when none is named; README ("Parameter sets") says why it is the default.
 __all__ = ["DEFAULT_PARAMETER_SET"]
 
 #: Shipped name of the default parameter set.
-DEFAULT_PARAMETER_SET = "valband-tc-2026"
+DEFAULT_PARAMETER_SET = "valband-tc2-2026"

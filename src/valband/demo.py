@@ -19,7 +19,7 @@ from valband.defaults import DEFAULT_PARAMETER_SET
 from valband.output import prepare_out_dir, write_csv
 from valband.writers import summary_of, write_summary
 
-__all__ = ["demo_candidates", "run_demo", "DEMO_NOTE", "DEFAULT_SET_CAUTION"]
+__all__ = ["demo_candidates", "run_demo", "DEMO_NOTE"]
 
 DEMO_NOTE = (
     "Invented demo scenario: the Halvard Ridge catalysis group is fictional. Results are model "
@@ -28,14 +28,6 @@ DEMO_NOTE = (
 
 #: Parameters the demo fits to the invented measurements (the lifetime law fully free).
 DEMO_FIT_FREE = ("shift", "scale", "gaussian_fwhm", "gamma0", "lifetime_a", "background")
-
-#: Said with every demo run on the harrison-universal set (see README, "Parameter sets").
-DEFAULT_SET_CAUTION = (
-    "Caution: the harrison-universal set places E_F too close to the top of the noble-metal "
-    "d bands; this ranking demonstrates the workflow and is not a prediction (the default "
-    "valband-tc-2026 set is the quantitative one)."
-)
-
 
 def demo_folder() -> Path:
     """Folder of the installed demo files."""
@@ -104,7 +96,7 @@ def run_demo(out_dir: str | Path, params: str = DEFAULT_PARAMETER_SET, mesh: str
                     "fit_reduced_chi2": fit.reduced_chi2, "fit_r_factor": fit.r_factor}
         rows.append(row)
     rows.sort(key=lambda r: r["d_band_centre_eV"], reverse=True)
-    cautions = [DEFAULT_SET_CAUTION] if pset.name == "harrison-universal" else []
+    cautions = [f"Caution ({pset.name}): {pset.caution}"] if pset.caution else []
     nan = float("nan")
     write_csv(
         out / "screening.csv",

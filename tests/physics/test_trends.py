@@ -66,6 +66,19 @@ KNOWN = {
         "Pt-Co-Pt(111)": "model -0.06 (plain -0.30) vs published -0.4 ± 0.25: far too small "
                          "once the layers are neutral",
     },
+    "valband-tc2-2026": {
+        "Pd/Cu(111)": "model -0.77 (plain -1.58) vs published -0.4 ± 0.3: right sign, about "
+                      "twice the size",
+        "Cu/Pt(111)": "model +0.63 (plain +0.84) vs published +0.2 ± 0.2: right sign, three "
+                      "times the size",
+        "Pt-Ni-Pt(111)": "model +0.14 (plain +0.19) vs published -0.35 ± 0.25: the "
+                         "subsurface-Ni downshift of surface Pt is missing (wrong sign), although "
+                         "Pt-Ni ddσ at 2.77 Å rose from -0.42 (valband-tc-2026) to -0.66 eV",
+        "Pt-Co-Pt(111)": "model +0.00 (plain -0.06) vs published -0.4 ± 0.25: no shift once "
+                         "the layers are neutral",
+        "Pt-Fe-Pt(111)": "model -0.12 (plain -0.31) vs published -0.45 ± 0.3: right sign, "
+                         "too small once the layers are neutral",
+    },
 }
 
 

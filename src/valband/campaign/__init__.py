@@ -27,7 +27,7 @@ Top level::
 
 Options (in ``[defaults]`` and in any ``[[system]]``, which overrides them)::
 
-    params = "valband-tc-2026"       # a shipped parameter set, or a .toml path (relative
+    params = "valband-tc2-2026"      # a shipped parameter set, or a .toml path (relative
                                      #   to the campaign file); hashed into the inputs;
                                      #   default: the program's default set
     method = "kmesh"                 # "kmesh" (default) | "kpm" | "cpa"

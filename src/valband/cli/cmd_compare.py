@@ -20,6 +20,7 @@ from valband.cli.common import (
     dos_settings,
     print_json,
 )
+from valband.defaults import DEFAULT_PARAMETER_SET
 
 __all__ = ["add_arguments", "run"]
 
@@ -47,9 +48,9 @@ def add_arguments(p) -> None:
     p.add_argument("measured", help="measured spectrum: two-column text/CSV or VAMAS (.vms) file")
     p.add_argument("structure", help="structure file (any format ASE reads) or a build spec in "
                    "quotes, e.g. 'Cu fcc'")
-    p.add_argument("--params", default="valband-tc-2026", metavar="SET",
+    p.add_argument("--params", default=DEFAULT_PARAMETER_SET, metavar="SET",
                    help="parameter set: a shipped name or a .toml path "
-                   "(default valband-tc-2026)")
+                   f"(default {DEFAULT_PARAMETER_SET})")
     m = p.add_argument_group("measured file")
     m.add_argument("--block", default=None, help="VAMAS block name or 0-based index")
     m.add_argument("--axis", default="auto", choices=["auto", "binding", "kinetic"],

@@ -2,8 +2,8 @@
 
 One command refits and rewrites the shipped data file for a set (a few seconds per element)::
 
-    python -m valband.spectra.qp_fit --params valband-tc-2026            # print, write nothing
-    python -m valband.spectra.qp_fit --params valband-tc-2026 --write    # update the data file
+    python -m valband.spectra.qp_fit --params valband-tc2-2026            # print, write nothing
+    python -m valband.spectra.qp_fit --params valband-tc2-2026 --write    # update the data file
 
 Procedure, per element of ``valband/data/spectra/measured_d_bands.json``:
 
@@ -31,6 +31,7 @@ from pathlib import Path
 
 import numpy as np
 
+from valband.defaults import DEFAULT_PARAMETER_SET
 from valband.errors import InputError, SettingsError
 from valband.spectra.quasiparticle import DATA_FILE, QP_KIND
 
@@ -191,7 +192,8 @@ def main(argv=None) -> int:
     p = argparse.ArgumentParser(prog="python -m valband.spectra.qp_fit",
                                 description="fit the photoemission d-band correction of a "
                                 "parameter set")
-    p.add_argument("--params", default="valband-tc-2026", help="parameter set name or .toml")
+    p.add_argument("--params", default=DEFAULT_PARAMETER_SET,
+                   help="parameter set name or .toml (default: the default set)")
     p.add_argument("--write", action="store_true",
                    help=f"store the result in the package's data/spectra/{DATA_FILE}")
     p.add_argument("--out", default=None, help="write the data file here instead")
