@@ -15,6 +15,7 @@ from valband.campaign import (
     read_rows,
     run_campaign,
 )
+from valband.defaults import DEFAULT_PARAMETER_SET
 from valband.errors import InputError
 
 from .campaigns import SMALL, write
@@ -48,11 +49,11 @@ def test_failures_are_recorded_and_the_rest_finish(finished):
         assert -6.0 < d["cell"]["centre"] < 0.0 and 0.5 < d["cell"]["filling"] <= 1.0
         assert r["wall_s"] > 0 and r["finished_utc"] >= r["started_utc"]
         assert r["provenance"]["seed"] == r["seed"] == r["inputs"]["seed"]
-        assert r["provenance"]["parameter_set"]["name"] == "valband-tc-2026"   # the default
+        assert r["provenance"]["parameter_set"]["name"] == DEFAULT_PARAMETER_SET
     # CPA and KPM run on the default set's orthogonal counterpart, and say so
-    assert cpa["provenance"]["parameter_set_used"]["name"].startswith("valband-tc-2026-orth")
+    assert cpa["provenance"]["parameter_set_used"]["name"].startswith(DEFAULT_PARAMETER_SET + "-orth")
     kpm = rows["kpm:Cu3Pd L12"]
-    assert kpm["provenance"]["parameter_set_used"]["name"] == "valband-tc-2026-orth"
+    assert kpm["provenance"]["parameter_set_used"]["name"] == DEFAULT_PARAMETER_SET + "-orth"
     assert kpm["results"]["dos"]["method"] == "kpm" and kpm["results"]["dos"]["n_vectors"] == 2
 
 

@@ -10,6 +10,7 @@ import sys
 import pytest
 
 from valband.cli.main import COMMANDS, main
+from valband.defaults import DEFAULT_PARAMETER_SET
 
 
 def run(capsys, *argv):
@@ -43,7 +44,7 @@ def test_dos_writes_files_and_json(capsys, tmp_path):
     assert summary["schema"] == "valband.summary" and summary["schema_version"] == 1
     assert summary["n_electrons"] == 11
     assert summary["settings"]["mesh"]["mesh"] == [6, 6, 6]
-    assert summary["provenance"]["parameter_set"]["name"] == "valband-tc-2026"
+    assert summary["provenance"]["parameter_set"]["name"] == DEFAULT_PARAMETER_SET
     d = summary["descriptors"][0]
     assert d["shell"] == "d" and "Cu" in d["elements"]
     for f in ("dos.csv", "pdos_sites.csv", "dos.png", "summary.json"):

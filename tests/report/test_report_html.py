@@ -9,6 +9,7 @@ from pathlib import Path
 
 import pytest
 
+from valband.defaults import DEFAULT_PARAMETER_SET
 from valband.errors import InputError
 from valband.report.figure import main_figure
 from valband.report.html import CAUTIONS, build_report
@@ -31,7 +32,7 @@ def test_demo_writes_report_and_figures(demo_run):
     for r in summary["screening"]:
         assert f">{r['name']}<" in html
     assert "Fit to the measured spectrum" in html and "1σ" in html
-    assert "valband-tc-2026" in html and "settings and provenance" in html
+    assert DEFAULT_PARAMETER_SET in html and "settings and provenance" in html
     assert all(escape(c) in html for c in CAUTIONS) and "Invented" in html
     assert (out / "figure.png").read_bytes()[:4] == b"\x89PNG"
     assert (out / "figure.pdf").read_bytes()[:5] == b"%PDF-"

@@ -9,6 +9,7 @@ import numpy as np
 import pytest
 
 from valband.cli.main import main
+from valband.defaults import DEFAULT_PARAMETER_SET
 
 _FAST = ["--mesh", "6", "--step", "0.02"]
 
@@ -20,7 +21,7 @@ def test_simulate_prints_and_records_the_correction(capsys):
     assert "lifetime HWHM 0.01 eV + 0.01/eV" in out
     s = json.loads(Path("on/summary.json").read_text())
     rec = s["d_band_correction"]
-    assert rec["enabled"] and rec["parameter_set"] == "valband-tc-2026" and "Cu" in rec["applied"]
+    assert rec["enabled"] and rec["parameter_set"] == DEFAULT_PARAMETER_SET and "Cu" in rec["applied"]
     assert s["spectrum"]["d_band_correction"] == rec
     assert "qp_correction" not in s["settings"]      # the DOS block stays first-principles
     assert main(["simulate", "Cu fcc", "--photon-energy", "Al-Ka", "--out", "off",
