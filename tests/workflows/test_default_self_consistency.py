@@ -128,3 +128,23 @@ def test_cli_records_and_prints_the_choice(capsys):
     s = json.loads(capsys.readouterr().out)
     assert s["method"]["neutrality"]["mode"] is None
     assert s["method"]["method"] == "k-mesh"
+
+
+def test_site_counts_of_a_finished_dos_add_up_to_the_electron_count(ps):
+    # ∫ DOS up to E_F is the electron count (definition of E_F); the site split is Mulliken's
+    from valband.alloy import site_charges_and_dos
+
+    model, info = _model("Cu3Pd L12", ps)
+    dos = compute_dos(model, DOSSettings(mesh=8))
+    q, d = site_charges_and_dos(dos)
+    assert q.sum() == pytest.approx(model.n_electrons, abs=2e-3)
+    assert d.sum() == pytest.approx(dos.value_at_fermi(), rel=1e-3)
+
+
+def test_record_of_the_dos_mesh_check(ps):
+    model, info = _model("slab Cu fcc111 layers=5 vacuum=10", ps)
+    _, record = dos_by_method(model, info, DOSSettings(mesh=(12, 12, 1)), params=ps)
+    neu = record["neutrality"]
+    # the coarse loop's shifts were checked on the DOS mesh, and improved there if needed
+    assert "coarse_residual_on_dos_mesh" in neu or neu["loop_mesh"] == [6, 6, 1]
+    assert neu["final_mesh_max_residual_per_site"] <= FINAL_MESH_TOLERANCE

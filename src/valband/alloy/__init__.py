@@ -13,9 +13,11 @@ from valband.alloy.layers import GroupDescriptorTable, layer_descriptors, resolv
 from valband.alloy.neutrality import (
     NeutralityReport,
     NeutralitySettings,
+    corrected_shifts,
     neutral_dos,
     shifted_model,
     site_charge_residuals,
+    site_charges_and_dos,
     solve_neutrality,
 )
 from valband.alloy.vca import (
@@ -48,6 +50,8 @@ __all__ = [
     "resolve_groups",
     "shifted_model",
     "site_charge_residuals",
+    "site_charges_and_dos",
+    "corrected_shifts",
     "solve_neutrality",
     "vca_model",
     "vca_scan",

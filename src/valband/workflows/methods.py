@@ -66,7 +66,7 @@ def alloy_parent(info: dict):
 
 def neutrality_choice(structure, requested: str = "auto", *, alloy: str = "supercell",
                       charged: bool = False) -> tuple[str | None, str]:
-    """The neutrality mode to run (or None) and the reason, for ``summary.json`` and stdout.
+    """Return the neutrality mode to run (or None) and the reason, for summary and stdout.
 
     Parameters
     ----------
@@ -150,6 +150,7 @@ def dos_by_method(model, info: dict, settings, *, params, alloy: str = "supercel
     if mode is not None:
         from valband.alloy import (
             NeutralitySettings,
+            corrected_shifts,
             shifted_model,
             site_charge_residuals,
             solve_neutrality,
@@ -169,6 +170,16 @@ def dos_by_method(model, info: dict, settings, *, params, alloy: str = "supercel
 
             final = compute_dos(shifted, settings, progress=progress)
             worst = max(abs(v) for v in site_charge_residuals(final, report).values())
+            if worst > FINAL_MESH_TOLERANCE:   # one Newton step on the DOS mesh
+                v = corrected_shifts(final, report, loop.min_dos)
+                trial = compute_dos(shifted_model(model, v), settings, progress=progress)
+                moved = dataclasses.replace(report, site_shifts=v)
+                after = max(abs(r) for r in site_charge_residuals(trial, moved).values())
+                record["neutrality"] |= {"coarse_residual_on_dos_mesh": worst,
+                                         "newton_step_on_dos_mesh": True}
+                if after < worst:
+                    shifted, final, worst = shifted_model(model, v), trial, after
+                    report = _with_shifts(report, v)
             if worst > FINAL_MESH_TOLERANCE:   # not enough: go on from there on the DOS mesh
                 coarse = report.iterations
                 loop = dataclasses.replace(loop, mesh_scale=1.0)
@@ -176,7 +187,7 @@ def dos_by_method(model, info: dict, settings, *, params, alloy: str = "supercel
                                           neutrality=loop, initial_shifts=report.site_shifts)
                 shifted, final = shifted_model(model, report.site_shifts), None
                 record["neutrality"] |= {"coarse_loop_iterations": coarse,
-                                         "coarse_residual_on_dos_mesh": worst}
+                                         "residual_before_dos_mesh_loop": worst}
                 worst = report.max_residual
             record["neutrality"]["final_mesh_max_residual_per_site"] = worst
         record["neutrality"] |= {"converged": True, "iterations": report.iterations,
@@ -204,6 +215,12 @@ def dos_by_method(model, info: dict, settings, *, params, alloy: str = "supercel
         record["neutrality"]["note"] = ("shifts solved on the scalar-relativistic, non-magnetic "
                                         "model; the spin run uses the shifted model")
     return res.total, record
+
+
+def _with_shifts(report, site_shifts):
+    """Return the report with the site and group shifts after a step on the DOS mesh."""
+    groups = {g: float(site_shifts[list(idx)].mean()) for g, idx in report.groups.items()}
+    return dataclasses.replace(report, site_shifts=site_shifts, group_shifts=groups)
 
 
 def _alloy_dos(model, info, settings, params, alloy, progress):
