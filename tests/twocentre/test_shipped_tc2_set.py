@@ -28,12 +28,14 @@ from valband.params import load_parameter_set
 from valband.params.model import BOND_INTEGRALS
 from valband.structure import build_structure
 from valband.tb import build_model
-from valband.twocentre import SHELL_R0_FACTORS, regenerate_pair
+from valband.twocentre import SHELL_R0_FACTORS
 from valband.twocentre.confinement import DENSITY_R0_FACTOR
 from valband.twocentre.generate import settings_from_provenance
 from valband.twocentre.shape import dd_shape, fcc_levels, load_targets
 from valband.workflows import compute_dos, describe
 from valband.workflows.dos import DOSSettings
+
+from .shipped_checks import assert_pair_regenerates
 
 NAME = "valband-tc2-2026"
 ELEMENTS = {"Fe", "Co", "Ni", "Cu", "Ru", "Rh", "Pd", "Ag", "Os", "Ir", "Pt", "Au",
@@ -69,17 +71,7 @@ def test_contents_and_provenance(ps):
 
 
 def test_regenerated_pair_reproduces_the_shipped_numbers(ps):
-    t = regenerate_pair(ps.provenance, "Cu", "Pd")
-    pair = ps.pair("Cu", "Pd")
-    for kind, laws, table in (("H", pair.hopping, t.hopping), ("S", pair.overlap, t.overlap)):
-        for name, law in laws.items():
-            n = len(law.r)
-            np.testing.assert_allclose(law.r, t.distances[:n], atol=1e-12)
-            np.testing.assert_allclose(law.v, table[:n, BOND_INTEGRALS.index(name)], atol=2e-7,
-                                       err_msg=f"{kind} {name}")
-    for el in ("Cu", "Pd"):
-        for sh, v in t.onsite[el].items():
-            assert ps.element(el).onsite[sh] == pytest.approx(v, abs=1e-8)
+    assert_pair_regenerates(ps, "Cu", "Pd")
 
 
 @pytest.mark.parametrize("pair", [("Cu", "Cu"), ("Pd", "Pd"), ("Pt", "Pt"), ("Au", "Au"),
