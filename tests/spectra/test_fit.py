@@ -192,3 +192,36 @@ def test_photon_energy_is_required(cu_dos):
     with pytest.raises(SettingsError, match="no photon energy"):
         fit_spectrum(bare, cu_dos)
     assert fit_spectrum(bare, cu_dos, "Al-Ka").settings["photon_source"] == "Al-Ka"
+
+
+def test_a_shift_scanned_to_almost_zero_still_moves():
+    # Regression guard (invented data, validates nothing): the coarse scan of the invented
+    # Cu3Pd demo block lands on a grid value of ~1.8e-15 eV; a relative finite-difference step
+    # there is ~1e-20 eV and froze the shift with error 0 at χ²_red 13; the invented file was
+    # made with a calibration offset of +0.12 eV
+    from valband.defaults import DEFAULT_PARAMETER_SET
+    from valband.demo_measurements import shipped_file
+    from valband.params import load_parameter_set
+    from valband.spectra.measured import read_spectrum
+    from valband.tb import build_model
+    from valband.workflows import DOSSettings
+    from valband.workflows.methods import dos_by_method
+
+    ps = load_parameter_set(DEFAULT_PARAMETER_SET)
+    model = build_model(_cu3pd(), ps)
+    dos, _ = dos_by_method(model, {"kind": "file"}, DOSSettings(mesh=20), params=ps, soc=None,
+                           context="spectra")
+    meas = read_spectrum(shipped_file(), block="Cu3Pd")
+    fit = fit_spectrum(meas, dos, free=("shift", "scale", "gaussian_fwhm", "gamma0",
+                                        "lifetime_a", "background"))
+    assert fit.error("shift") > 1e-5
+    assert fit.value("shift") == pytest.approx(0.12, abs=0.02)
+    assert fit.reduced_chi2 < 1.5
+
+
+def _cu3pd():
+    from valband.demo import demo_candidates
+    from valband.structure import read_structure
+
+    _, cands = demo_candidates()
+    return read_structure(next(c["path"] for c in cands if c["name"] == "Cu3Pd"))

@@ -363,6 +363,10 @@ def _number(v, what: str) -> float:
 
 
 # ------------------------------------------------------------------------------ the fit
+#: Finite-difference step of the fit's Jacobian, in units of each parameter's scale.
+FD_STEP = 1e-5
+
+
 def fit_spectrum(measured: MeasuredSpectrum, dos: DOSResult, photon_energy=None, *,
                  temperature: float = 300.0, geometry=DEFAULT_GEOMETRY, layer_weights=None,
                  background: str = "shirley", free: Iterable[str] = DEFAULT_FREE,
@@ -650,10 +654,25 @@ def fit_spectrum(measured: MeasuredSpectrum, dos: DOSResult, photon_energy=None,
     def resid(x):
         return (y - evaluate(params_of(x))[2]) / sigma
 
+    def jac(x):
+        # forward differences with absolute steps of 1e-5 of each parameter's scale: a
+        # relative step (scipy's diff_step) vanishes for a parameter that sits at ~0 (a shift
+        # scanned to 1.8e-15 eV got a zero derivative and stuck with error 0)
+        f0 = resid(x)
+        out = np.empty((f0.size, x.size))
+        for i in range(x.size):
+            h = FD_STEP * x_scale[i]
+            if x[i] + h > ub[i]:
+                h = -h
+            xi = x.copy()
+            xi[i] += h
+            out[:, i] = (resid(xi) - f0) / h
+        return out
+
     try:
-        res = least_squares(resid, x0, bounds=(lb, ub), x_scale=x_scale, method="trf",
-                            xtol=1e-10, ftol=1e-10, gtol=1e-10, max_nfev=400 * len(x0),
-                            diff_step=1e-5)
+        res = least_squares(resid, x0, jac=jac, bounds=(lb, ub), x_scale=x_scale,
+                            method="trf", xtol=1e-10, ftol=1e-10, gtol=1e-10,
+                            max_nfev=400 * len(x0))
     except (ValueError, np.linalg.LinAlgError) as exc:
         raise CalculationError(f"spectrum fit failed: {exc}") from None
     if res.status <= 0:
