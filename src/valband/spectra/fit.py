@@ -44,8 +44,10 @@ from a coarse scan (0.1 eV steps) with the linear parameters solved at each step
 Weighted least squares (:func:`scipy.optimize.least_squares`, trust-region reflective with
 bounds) on r_i = (y_i − model_i)/σ_i with σ the measured uncertainty (Poisson √counts, at
 least 1) when the spectrum has one, else σ = 1 and the covariance scaled by the reduced χ².
-The shift starts from the best point of a coarse scan over its bounds (linear parameters solved at each step), so a
-calibration offset of an electronvolt or so is found without an initial guess.
+The shift starts from the best point of a coarse scan over its bounds (linear parameters
+solved at each step), so a calibration offset of an electronvolt or so is found without an
+initial guess. The Jacobian is by forward differences with absolute steps (:data:`FD_STEP` of
+each parameter's scale), which stay finite for a parameter at zero.
 
 Goodness of fit: χ², reduced χ² = χ²/(N − n_free) and the R-factor
 R = Σ|y − model| / Σ|y| over the fitted points.
