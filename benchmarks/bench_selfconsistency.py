@@ -56,9 +56,12 @@ def main() -> None:
         t_plain = best_of(lambda: run("off"), a.repeat)
         t_sc = best_of(lambda: run("auto"), a.repeat)
         neu = rec["neutrality"]
+        coarse = neu.get("coarse_loop_mesh", neu["loop_mesh"])
         loop = (f"{neu.get('coarse_loop_iterations', neu['iterations'])} iterations on "
-                f"{neu['loop_mesh']}" + (f" + {neu['iterations']} on the DOS mesh"
-                                         if "coarse_loop_iterations" in neu else ""))
+                f"{coarse}" + (f" + {neu['iterations']} on the DOS mesh"
+                               if "coarse_loop_iterations" in neu else
+                               " + a Newton step on the DOS mesh"
+                               if "newton_step_on_dos_mesh" in neu else ""))
         print(f"{spec:38s} {str(mesh):>9s} {t_plain:8.2f} {t_sc:9.2f} {t_sc / t_plain:6.2f}  "
               f"{loop}")
     print(f"load average after: {os.getloadavg()[0]:.2f}")

@@ -168,6 +168,8 @@ def dos_by_method(model, info: dict, settings, *, params, alloy: str = "supercel
         if loop.loop_mesh(settings.mesh) != parse_mesh(settings.mesh):
             from valband.workflows import compute_dos
 
+            record["neutrality"]["coarse_loop_mesh"] = list(loop.loop_mesh(settings.mesh))
+
             final = compute_dos(shifted, settings, progress=progress)
             worst = max(abs(v) for v in site_charge_residuals(final, report).values())
             if worst > FINAL_MESH_TOLERANCE:   # one Newton step on the DOS mesh
