@@ -97,6 +97,7 @@ def test_demo_runs_and_ranks(capsys, tmp_path):
         (["dos", "Cu fcc", "--mesh", "4", "--electrons", "40"], "electron"),
         (["dos", "Cu fcc", "--params", "no-such-set"], "no-such-set"),
         (["bands", "Cu fcc", "--character", "Cu:f"], "character"),
+        (["bands", "Cu fcc", "--character", "Pd:d"], "Pd is not in Cu"),
     ],
 )
 def test_errors_are_one_line_and_exit_nonzero(capsys, argv, message):
@@ -105,6 +106,14 @@ def test_errors_are_one_line_and_exit_nonzero(capsys, argv, message):
     assert message in err
     assert "Traceback" not in err
     assert err.count("\n") == 1
+
+
+def test_an_all_zero_measured_spectrum_is_named(capsys, tmp_path):
+    zero = tmp_path / "zero.csv"
+    zero.write_text("BE,I\n" + "".join(f"{-1 + 0.05 * i:.2f},0\n" for i in range(200)))
+    code, _, err = run(capsys, "compare", str(zero), "Cu fcc", "--photon-energy", "Al-Ka",
+                       "--mesh", "6", "--out", str(tmp_path / "c"), "--quiet")
+    assert code == 1 and "no positive intensity" in err and "Traceback" not in err
 
 
 def test_malformed_structure_file(capsys, tmp_path):

@@ -33,6 +33,10 @@ def run(args) -> int:
         raise SettingsError(f"--character {args.character!r}: expected SHELL or ELEMENT:SHELL, "
                             "SHELL one of s, p, d")
     model = load_model(args)
+    present = sorted(set(model.structure.symbols))
+    if element and element not in present:
+        raise SettingsError(f"--character {args.character!r}: {element} is not in "
+                            f"{model.structure.formula}; accepted elements: {', '.join(present)}")
     extra = None
     if args.soc:
         from valband.params import load_parameter_set

@@ -462,6 +462,10 @@ def fit_spectrum(measured: MeasuredSpectrum, dos: DOSResult, photon_energy=None,
                             f"the measurement spans {e_all[0]:.4g} to {e_all[-1]:.4g} eV and "
                             f"the DOS {be_dos_lo:.4g} to {be_dos_hi:.4g} eV in binding energy")
     e, y = e_all[mask], y_all[mask]
+    if not np.any(y > 0):
+        raise InputError(f"the measured spectrum has no positive intensity in the fit window "
+                         f"({lo:.4g}, {hi:.4g}) eV (all {y.size} values ≤ 0): nothing to fit; "
+                         "accepted: counts or count rates with a valence band in the window")
     if measured.uncertainty is not None:
         sigma = np.maximum(measured.uncertainty[mask], 1.0 if measured.unit == "counts"
                            else 1e-12 * max(float(np.abs(y).max()), 1e-300))
