@@ -27,8 +27,9 @@ Iteration
     (:mod:`valband.alloy.mixing`). Converged when every |r_g| ≤ tol; otherwise after
     ``max_iter`` a :class:`CalculationError` names the worst group and its residual.
 Speed
-    H(k), S(k) are built once per k and kept; each iteration only adds the shifts and
-    diagonalises with :func:`valband.solve.eigen.generalized_eigh` (the solver of every DOS).
+    H(k), S(k) and L⁻¹ of S = L Lᴴ are built once per k and kept; each iteration only adds
+    the shifts and diagonalises with :func:`valband.solve.eigen.generalized_eigh` (the solver
+    of every DOS).
     The irreducible wedge is used (site counts averaged over orbits of equivalent sites,
     exact) when the group partition is invariant under the space group, else the full mesh.
     The loop may run on a coarser mesh than the DOS (``mesh_scale``).
@@ -53,7 +54,7 @@ from valband.dos import find_fermi_level, smearing_count
 from valband.errors import CalculationError, InputError, SettingsError
 from valband.kspace import make_mesh
 from valband.kspace.symmetry import equivalent_sites
-from valband.solve.eigen import generalized_eigh, real_gauge
+from valband.solve.eigen import generalized_eigh, inverse_cholesky, real_gauge
 from valband.tb import TBModel
 from valband.workflows import DOSSettings, compute_dos
 
@@ -222,7 +223,7 @@ class _Charges:
         nk = len(kpoints)
         self.chunks = [slice(a, min(a + chunk, nk)) for a in range(0, nk, chunk)]
         itemsize = 8 if self.gauge is not None else 16
-        per_k = (1 if model.orthogonal else 2) * model.n_orbitals**2 * itemsize
+        per_k = (1 if model.orthogonal else 3) * model.n_orbitals**2 * itemsize
         self.keep = per_k * len(kpoints) <= CACHE_BYTES
         self._cache: dict[int, tuple] = {}
 
@@ -233,20 +234,21 @@ class _Charges:
         if self.gauge is not None:
             h = (h * self.gauge).real
             s = None if s is None else (s * self.gauge).real
+        out = (h, s, None if s is None else inverse_cholesky(s))
         if self.keep:
-            self._cache[c] = (h, s)
-        return h, s
+            self._cache[c] = out
+        return out
 
     def __call__(self, site_shift: NDArray[np.float64]):
         v = site_shift[self.orb_site]
         eigs, wts = [], []
         for c in range(len(self.chunks)):
-            h, s = self._matrices(c)
+            h, s, linv = self._matrices(c)
             if s is None:
                 hp = h + np.diag(v)[None]
             else:
                 hp = h + 0.5 * (v[:, None] + v[None, :])[None] * s
-            e, vec = generalized_eigh(hp, s)
+            e, vec = generalized_eigh(hp, s, linv=linv)
             if s is None:
                 w = np.abs(vec) ** 2 if np.iscomplexobj(vec) else vec * vec
             else:

@@ -131,16 +131,8 @@ def _eigh(m):
     return np.linalg.eigh(m)
 
 
-def generalized_eigh(h, s, vectors: bool = True):
-    """Eigenvalues (ascending) and S-orthonormal eigenvectors of H c = E S c, batched.
-
-    ``s=None`` is the orthogonal case. The Cholesky reduction L⁻¹ H L⁻ᴴ keeps the compiled
-    small-matrix solver for real stacks; with ``vectors=False`` the vectors are None.
-    Raises CalculationError when S is not positive definite.
-    """
-    if s is None:
-        e, c = _eigh(h)
-        return e, (c if vectors else None)
+def inverse_cholesky(s):
+    """L⁻¹ of S = L Lᴴ, batched; CalculationError when S is not positive definite."""
     try:
         chol = np.linalg.cholesky(s)
     except np.linalg.LinAlgError:
@@ -148,7 +140,22 @@ def generalized_eigh(h, s, vectors: bool = True):
             "the overlap matrix S(k) is not positive definite at some k-point: the overlap "
             "integrals of the parameter set are too large for this structure (atoms too close?)"
         ) from None
-    linv = np.linalg.inv(chol)
+    return np.linalg.inv(chol)
+
+
+def generalized_eigh(h, s, vectors: bool = True, linv=None):
+    """Eigenvalues (ascending) and S-orthonormal eigenvectors of H c = E S c, batched.
+
+    ``s=None`` is the orthogonal case. The Cholesky reduction L⁻¹ H L⁻ᴴ keeps the compiled
+    small-matrix solver for real stacks; with ``vectors=False`` the vectors are None.
+    ``linv`` is L⁻¹ of :func:`inverse_cholesky` when the caller keeps it (e.g. for many H with
+    one S). Raises CalculationError when S is not positive definite.
+    """
+    if s is None:
+        e, c = _eigh(h)
+        return e, (c if vectors else None)
+    if linv is None:
+        linv = inverse_cholesky(s)
     linv_h = np.conj(np.swapaxes(linv, -1, -2))
     e, y = _eigh(linv @ h @ linv_h)
     return e, (linv_h @ y if vectors else None)
