@@ -7,6 +7,28 @@ import pytest
 
 from valband.params.model import BOND_INTEGRALS
 from valband.twocentre import regenerate_pair
+from valband.twocentre.generate import settings_from_provenance
+
+#: The 17 elements of the shipped first-principles sets.
+ELEMENTS = {"Fe", "Co", "Ni", "Cu", "Ru", "Rh", "Pd", "Ag", "Os", "Ir", "Pt", "Au",
+            "Al", "Zn", "Ga", "In", "Sn"}
+
+
+def assert_shipped_contents(ps):
+    """17 elements, all 153 pairs, non-orthogonal, spd / sp shells, solid configurations.
+
+    Returns the generation settings the set records.
+    """
+    assert set(ps.elements) == ELEMENTS
+    assert len(ps.pairs) == len(ELEMENTS) * (len(ELEMENTS) + 1) // 2 == 153
+    assert not ps.orthogonal
+    for el in ("Fe", "Cu", "Pd", "Pt", "Zn"):
+        assert ps.element(el).shells == ("s", "p", "d")
+    for el in ("Al", "Ga", "In", "Sn"):
+        assert ps.element(el).shells == ("s", "p")
+    s = settings_from_provenance(ps.provenance)
+    assert s.relativity == "scalar" and s.configuration == "solid"
+    return s
 
 
 def assert_pair_regenerates(ps, first: str, second: str) -> None:
